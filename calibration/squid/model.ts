@@ -95,11 +95,16 @@ export function solveExactRoot(g: number, c = 0): number {
     if (gx === 0) return x;
     if (gx < 0) lo = x;
     else hi = x;
-    const slope = dG(x);
-    let next = x - gx / slope;
-    if (!(next > lo && next < hi) || !Number.isFinite(next)) next = 0.5 * (lo + hi);
-    if (Math.abs(next - x) <= 1e-15 * Math.max(x, 1e-300) || hi - lo <= 1e-15 * hi) return next;
-    x = next;
+    const step = gx / dG(x);
+    const next = x - step;
+    if (Number.isFinite(next) && next >= lo && next <= hi) {
+      // Newton converges quadratically: a step below 1e-10·x leaves an error of order 1e-20·x.
+      if (Math.abs(step) <= 1e-10 * x) return next;
+      x = next;
+    } else {
+      x = 0.5 * (lo + hi);
+    }
+    if (hi - lo <= 1e-15 * hi) return x;
   }
   return x;
 }
