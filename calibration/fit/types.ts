@@ -14,6 +14,13 @@ export interface ParameterSpec {
   max?: number;
   /** false keeps the parameter fixed at `value`. Default true. */
   vary?: boolean;
+  /**
+   * Typical magnitude: the forward-difference step is diffStep·max(|value|, diffScale), so a
+   * parameter passing through zero keeps a usable step. Default: 1e-3·|initial value| when that
+   * is non-zero, else 1e-3·(max - min) when both bounds are finite, else 1. Give it for
+   * parameters that start at zero and live far from unit scale (e.g. a delay in seconds).
+   */
+  diffScale?: number;
 }
 
 /**
@@ -35,6 +42,8 @@ export interface LeastSquaresOptions {
   gtol?: number;
   /** Relative step for forward-difference Jacobians. */
   diffStep?: number;
+  /** false skips the covariance (and stderr, correlation) at the solution, e.g. for the losing starts of a multi-start fit. Default true. */
+  computeCovariance?: boolean;
 }
 
 /**
@@ -84,4 +93,10 @@ export interface FitResult {
   loss: Loss;
   /** Per-residual weights the robust loss applied at the solution (1 = full weight); absent for linear loss. */
   robustWeights?: number[];
+  /** ndata - nvarys (redchi divides by max(1, nfree), as lmfit does). */
+  nfree?: number;
+  /** Final value of the minimised cost 0.5·Σ fScale²·rho((r/fScale)²) (= chisqr/2 for the linear loss). */
+  cost?: number;
+  /** Number of Jacobian evaluations (numeric or analytic). */
+  njev?: number;
 }

@@ -1,0 +1,3 @@
+// Public surface of the generic least-squares engine.
+export * from './types';
+export { leastSquares, LEAST_SQUARES_DEFAULTS } from './leastsq';
