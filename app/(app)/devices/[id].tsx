@@ -1,0 +1,15 @@
+import React from 'react';
+import { useLocalSearchParams } from 'expo-router';
+import { DeviceDetail } from '@/client/devices/DeviceDetail';
+import { Screen } from '@/client/ui/Screen';
+import { useIsWide } from '@/client/ui/useLayout';
+
+export default function DeviceScreen() {
+  const { id } = useLocalSearchParams<{ id: string }>();
+  const wide = useIsWide();
+  return (
+    <Screen testID="device-screen" maxWidth={820}>
+      <DeviceDetail id={Number(id)} showBack={!wide} />
+    </Screen>
+  );
+}
