@@ -92,7 +92,9 @@ export function fitCirclePratt(x: ArrayLike<number>, y: ArrayLike<number>, n = x
   if (!Number.isFinite(xc) || !Number.isFinite(yc) || !(r > 0) || !Number.isFinite(r)) return null;
   let ss = 0;
   for (let i = 0; i < n; i++) {
-    const d = Math.hypot(x[i] - xc, y[i] - yc) - r;
+    const dx = x[i] - xc;
+    const dy = y[i] - yc;
+    const d = Math.sqrt(dx * dx + dy * dy) - r;
     ss += d * d;
   }
   return { xc, yc, r, rmsDistance: Math.sqrt(ss / n) };

@@ -1,0 +1,645 @@
+/**
+ * Per-trace resonance extraction from complex S21 (notch) or S11 (reflection).
+ *
+ * Procedure of Probst et al., Rev. Sci. Instrum. 86, 024706 (2015), with the complex coupling
+ * quality factor of Khalil et al., J. Appl. Phys. 111, 054510 (2012):
+ *  1. cable delay τ from the phase slope on the wings, refined so the data best form a circle;
+ *  2. algebraic (Pratt) circle fit of the delay-corrected data;
+ *  3. fit of the angle about the circle centre, θ(f) = θ0 + 2·arctan(2Q_l(1 − f/f_r));
+ *  4. the off-resonant point P = c − r·e^{iθ0} gives a = |P| and α = arg P; normalising by P,
+ *     notch: |Q_c| = Q_l/(2r), φ = arg(1 − c) (= −arcsin(y_c/r) for |φ| < π/2, but defined for any
+ *     φ); reflection: diameter 2r = 2Q_l/Q_c;
+ *  5. a complex least-squares refinement of all parameters (re and im residuals stacked, weighted
+ *     by the off-resonance noise) with an analytic Jacobian, for the standard errors.
+ * Internally the delay is referenced to the window centre f_ref (phase a·e^{iα_ref}·e^{−2πi(f−f_ref)τ}),
+ * which removes the near-total α–τ correlation of the absolute-frequency form; α is converted back to
+ * the absolute convention of models.ts on output.
+ */
+import { leastSquares } from '../fit/leastsq';
+import type { FitResult, ParameterSpec } from '../fit/types';
+import type { TraceJson } from '../contract';
+import { fitCirclePratt } from './circle';
+import type { ResonatorGeometry } from './models';
+import {
+  centredPhase,
+  delayFromPhaseSlope,
+  noiseFromSecondDifferences,
+  refineDelay,
+  removeDelay,
+  uniformStep,
+  validateTrace,
+  wrapAngle,
+} from './prep';
+
+export type TraceFlag = null | 'no_resonance' | 'low_snr' | 'fit_failed';
+
+export interface ExtractOptions {
+  geometry: ResonatorGeometry;
+  /** Known cable delay, s: skips the delay estimate and holds τ fixed in the refinement. */
+  delayS?: number;
+  /**
+   * Minimum SNR = circle diameter / complex noise rms. Default 4 (common practice puts the
+   * threshold at 3–5).
+   */
+  minSnr?: number;
+  /**
+   * Minimum improvement of χ² (in units of the fitted noise variance) of the resonance model over
+   * a resonance-free background for a resonance to count as present. Default 50: far above the
+   * ~20 that the best of ~1000 trial positions reaches on pure noise (χ² tail with 4 extra
+   * parameters; common practice for a look-elsewhere margin).
+   */
+  minDeltaChi2?: number;
+  /** Iteration cap of the complex refinement (tests use a tiny value to provoke fit_failed). */
+  maxIterations?: number;
+}
+
+export interface TraceExtraction {
+  geometry: ResonatorGeometry;
+  frHz: number | null;
+  frStderrHz: number | null;
+  ql: number | null;
+  qlStderr: number | null;
+  /** |Q_c| (notch) or Q_c (reflection). */
+  qcAbs: number | null;
+  qcStderr: number | null;
+  /** φ of Q_c = |Q_c|e^{−iφ}; 0 for reflection. */
+  phiRad: number | null;
+  phiStderrRad: number | null;
+  qi: number | null;
+  qiStderr: number | null;
+  a: number | null;
+  /** α of a·e^{iα}·e^{−2πifτ} with absolute f, wrapped to (−π, π]. */
+  alphaRad: number | null;
+  delayS: number | null;
+  delayStderrS: number | null;
+  /** Circle diameter / complex noise rms (rms of |noise|, = √2 σ per quadrature). */
+  snr: number | null;
+  /** Complex noise rms from the refinement residuals. */
+  noiseRms: number | null;
+  /** Complex noise rms estimated off resonance (second differences) and used as weights. */
+  noiseRmsOffResonance: number;
+  /** χ² improvement of the resonance model over a flat background (noise-variance units). */
+  deltaChi2: number | null;
+  /** Circle of the result in the delay-removed frame S·e^{+2πifτ} (absolute f). */
+  circle: { xc: number; yc: number; r: number } | null;
+  flag: TraceFlag;
+  reason: string | null;
+  /** Complex refinement: parameters a, alpha_ref (α at f_ref), tau, fr, ql, qc, phi (notch). */
+  fit?: FitResult;
+  /** Window centre that alpha_ref in `fit` refers to, Hz. */
+  fRefHz: number;
+  /** Algebraic (pre-refinement) estimates, for diagnostics. */
+  initial: { frHz: number; ql: number; qcAbs: number; phiRad: number; a: number; alphaRad: number; delayS: number } | null;
+  elapsedMs: number;
+}
+
+const DEFAULT_MIN_SNR = 4;
+const DEFAULT_MIN_DELTA_CHI2 = 50;
+/** Window must cover this many linewidths (Q_l·span/f_r), common practice. */
+const MIN_LINEWIDTHS_IN_SPAN = 2;
+/** A linewidth must cover this many frequency steps to be resolved, common practice. */
+const MIN_POINTS_PER_LINEWIDTH = 2;
+
+interface ModelPoint {
+  a: number;
+  alphaRef: number;
+  tau: number;
+  fr: number;
+  ql: number;
+  qc: number;
+  phi: number;
+}
+
+const now = (): number => (typeof performance !== 'undefined' ? performance.now() : Date.now());
+
+/**
+ * Environment phasor e^{i(α_ref − 2π(f − f_ref)τ)} into (c, s). On a uniform grid by a complex
+ * recurrence re-anchored every 128 points (one product per point instead of two trig calls).
+ */
+function environmentPhasor(f: ArrayLike<number>, fRef: number, alphaRef: number, tau: number, step: number | null, c: Float64Array, s: Float64Array): void {
+  const n = f.length;
+  if (step === null) {
+    for (let i = 0; i < n; i++) {
+      const ph = alphaRef - 2 * Math.PI * (f[i] - fRef) * tau;
+      c[i] = Math.cos(ph);
+      s[i] = Math.sin(ph);
+    }
+    return;
+  }
+  const ph0 = alphaRef - 2 * Math.PI * (f[0] - fRef) * tau;
+  const dph = -2 * Math.PI * step * tau;
+  const dc = Math.cos(dph);
+  const ds = Math.sin(dph);
+  let cr = 1;
+  let ci = 0;
+  for (let i = 0; i < n; i++) {
+    if ((i & 127) === 0) {
+      const ph = ph0 + i * dph;
+      cr = Math.cos(ph);
+      ci = Math.sin(ph);
+    }
+    c[i] = cr;
+    s[i] = ci;
+    const t = cr * dc - ci * ds;
+    ci = cr * ds + ci * dc;
+    cr = t;
+  }
+}
+
+/** Model in the centre-referenced form; writes re/im (pc/ps: phasor scratch). */
+function modelInto(
+  geometry: ResonatorGeometry, f: ArrayLike<number>, fRef: number, p: ModelPoint, outRe: Float64Array, outIm: Float64Array,
+  step: number | null, pc: Float64Array, ps: Float64Array,
+): void {
+  const n = f.length;
+  const notch = geometry === 'notch';
+  const kAbs = notch ? p.ql / p.qc : (2 * p.ql) / p.qc;
+  const kr = notch ? kAbs * Math.cos(p.phi) : kAbs;
+  const ki = notch ? kAbs * Math.sin(p.phi) : 0;
+  environmentPhasor(f, fRef, p.alphaRef, p.tau, step, pc, ps);
+  for (let i = 0; i < n; i++) {
+    const u = 2 * p.ql * (f[i] / p.fr - 1);
+    const d = 1 / (1 + u * u);
+    const lr = d;
+    const li = -u * d;
+    const sr = 1 - (kr * lr - ki * li);
+    const si = -(kr * li + ki * lr);
+    const br = p.a * pc[i];
+    const bi = p.a * ps[i];
+    outRe[i] = br * sr - bi * si;
+    outIm[i] = br * si + bi * sr;
+  }
+}
+
+function nullResult(geometry: ResonatorGeometry, fRef: number, noiseOff: number, flag: TraceFlag, reason: string, t0: number): TraceExtraction {
+  return {
+    geometry, frHz: null, frStderrHz: null, ql: null, qlStderr: null, qcAbs: null, qcStderr: null, phiRad: null,
+    phiStderrRad: null, qi: null, qiStderr: null, a: null, alphaRad: null, delayS: null, delayStderrS: null, snr: null,
+    noiseRms: null, noiseRmsOffResonance: noiseOff, deltaChi2: null, circle: null, flag, reason, fRefHz: fRef,
+    initial: null, elapsedMs: now() - t0,
+  };
+}
+
+const fmtHz = (x: number): string => {
+  const ax = Math.abs(x);
+  if (ax >= 1e9) return `${(x / 1e9).toPrecision(7)} GHz`;
+  if (ax >= 1e6) return `${(x / 1e6).toPrecision(5)} MHz`;
+  if (ax >= 1e3) return `${(x / 1e3).toPrecision(4)} kHz`;
+  return `${x.toPrecision(3)} Hz`;
+};
+
+/**
+ * Extracts f_r, Q_l, Q_c, φ, Q_i (with standard errors) from one complex trace. Bad input (unequal
+ * lengths, non-finite values, non-increasing frequencies, fewer than 20 points) throws; every
+ * physics outcome, including failure, is a result with a flag and a reason, never NaN.
+ */
+export function extractResonance(
+  freqHz: ArrayLike<number>, re: ArrayLike<number>, im: ArrayLike<number>, opts: ExtractOptions,
+): TraceExtraction {
+  const t0 = now();
+  validateTrace(freqHz, re, im);
+  const geometry = opts.geometry;
+  if (geometry !== 'notch' && geometry !== 'reflection') {
+    throw new Error(`resonator: geometry must be 'notch' or 'reflection' (got ${String(geometry)})`);
+  }
+  if (opts.delayS !== undefined && !Number.isFinite(opts.delayS)) {
+    throw new Error(`resonator: delayS = ${opts.delayS} is not a finite number`);
+  }
+  const minSnr = opts.minSnr ?? DEFAULT_MIN_SNR;
+  const minDeltaChi2 = opts.minDeltaChi2 ?? DEFAULT_MIN_DELTA_CHI2;
+  const notch = geometry === 'notch';
+  const n = freqHz.length;
+  const f0 = freqHz[0];
+  const f1 = freqHz[n - 1];
+  const span = f1 - f0;
+  const fRef = 0.5 * (f0 + f1);
+  const step = uniformStep(freqHz);
+  const meanStep = span / (n - 1);
+
+  // 1. Cable delay.
+  let tau: number;
+  if (opts.delayS !== undefined) {
+    tau = opts.delayS;
+  } else {
+    const tau0 = delayFromPhaseSlope(freqHz, re, im);
+    // Search ±0.3 turn of residual phase across the window around the wing estimate.
+    tau = refineDelay(freqHz, re, im, fRef, tau0, 0.3 / span, step).tau;
+  }
+  const wr = new Float64Array(n);
+  const wi = new Float64Array(n);
+  removeDelay(freqHz, re, im, fRef, tau, wr, wi, step);
+
+  // 2. Circle.
+  const circle = fitCirclePratt(wr, wi, n);
+  if (circle === null) {
+    return nullResult(geometry, fRef, Math.SQRT2 * noiseFromSecondDifferences(freqHz, re, im), 'fit_failed', 'circle fit failed: the points are degenerate (all equal or collinear)', t0);
+  }
+
+  // 3. Angle about the centre.
+  const { theta, guess } = centredPhase(freqHz, wr, wi, circle);
+  const phaseFit = leastSquares(
+    (p) => {
+      const out = new Float64Array(n);
+      const th0 = p.theta0;
+      const fr = p.fr;
+      const ql = p.ql;
+      for (let i = 0; i < n; i++) out[i] = wrapAngle(theta[i] - th0 - 2 * Math.atan(2 * ql * (1 - freqHz[i] / fr)));
+      return out;
+    },
+    [
+      { name: 'theta0', value: guess.theta0 },
+      { name: 'fr', value: guess.frHz },
+      { name: 'ql', value: guess.ql, min: 1 },
+    ],
+    { maxIterations: 200, computeCovariance: false },
+    (p, names) => {
+      const rows: number[][] = new Array(n);
+      const fr = p.fr;
+      const ql = p.ql;
+      const full = names.length === 3 && names[0] === 'theta0' && names[1] === 'fr' && names[2] === 'ql';
+      const idx = names.map((nm) => ['theta0', 'fr', 'ql'].indexOf(nm));
+      for (let i = 0; i < n; i++) {
+        const x = 1 - freqHz[i] / fr;
+        const u = 2 * ql * x;
+        const w = 2 / (1 + u * u);
+        // residual = θ_i − model; d model/dθ0 = 1, d/dfr = w·2Q f/fr², d/dQ = w·2x.
+        const dF = (-w * 2 * ql * freqHz[i]) / (fr * fr);
+        const dQ = -w * 2 * x;
+        if (full) rows[i] = [-1, dF, dQ];
+        else {
+          const all = [-1, dF, dQ];
+          rows[i] = idx.map((j) => all[j]);
+        }
+      }
+      return rows;
+    },
+  );
+  let theta0 = guess.theta0;
+  let frInit = guess.frHz;
+  let qlInit = guess.ql;
+  const pf = phaseFit.params;
+  if (Number.isFinite(pf.theta0.value) && Number.isFinite(pf.fr.value) && pf.ql.value > 0) {
+    theta0 = pf.theta0.value;
+    frInit = pf.fr.value;
+    qlInit = pf.ql.value;
+  }
+
+  // 4. Off-resonant point, normalisation, coupling.
+  const pr = circle.xc - circle.r * Math.cos(theta0);
+  const pi = circle.yc - circle.r * Math.sin(theta0);
+  const aInit = Math.hypot(pr, pi);
+  const alphaRefInit = Math.atan2(pi, pr);
+  // Normalised centre c/P.
+  const cnr = (circle.xc * pr + circle.yc * pi) / (aInit * aInit);
+  const cni = (circle.yc * pr - circle.xc * pi) / (aInit * aInit);
+  const rn = circle.r / aInit;
+  const qcInit = notch ? qlInit / (2 * rn) : qlInit / rn;
+  const phiInit = notch ? Math.atan2(-cni, 1 - cnr) : 0;
+  const initial = {
+    frHz: frInit, ql: qlInit, qcAbs: qcInit, phiRad: phiInit, a: aInit,
+    alphaRad: wrapAngle(alphaRefInit + 2 * Math.PI * fRef * tau), delayS: tau,
+  };
+
+  // Noise off resonance: exclude ±5 linewidths around the first estimate.
+  const sigmaOff = Math.max(
+    noiseFromSecondDifferences(freqHz, re, im, frInit, (5 * frInit) / Math.max(qlInit, 1)),
+    1e-300,
+  );
+
+  // 5. Complex refinement.
+  const names = notch ? ['a', 'alpha_ref', 'tau', 'fr', 'ql', 'qc', 'phi'] : ['a', 'alpha_ref', 'tau', 'fr', 'ql', 'qc'];
+  const mr = new Float64Array(n);
+  const mi = new Float64Array(n);
+  const pc = new Float64Array(n);
+  const ps = new Float64Array(n);
+  const point = (p: Readonly<Record<string, number>>): ModelPoint => ({
+    a: p.a, alphaRef: p.alpha_ref, tau: p.tau, fr: p.fr, ql: p.ql, qc: p.qc, phi: notch ? p.phi : 0,
+  });
+  const inv = 1 / sigmaOff;
+  const residual = (p: Readonly<Record<string, number>>): Float64Array => {
+    modelInto(geometry, freqHz, fRef, point(p), mr, mi, step, pc, ps);
+    const out = new Float64Array(2 * n);
+    for (let i = 0; i < n; i++) {
+      out[i] = (re[i] - mr[i]) * inv;
+      out[n + i] = (im[i] - mi[i]) * inv;
+    }
+    return out;
+  };
+  const jacobian = (p: Readonly<Record<string, number>>, varying: readonly string[]): number[][] => {
+    const q = point(p);
+    const col = varying.map((nm) => names.indexOf(nm));
+    const identity = col.every((c, j) => c === j);
+    const kAbs = notch ? q.ql / q.qc : (2 * q.ql) / q.qc;
+    const kr = notch ? kAbs * Math.cos(q.phi) : kAbs;
+    const ki = notch ? kAbs * Math.sin(q.phi) : 0;
+    const rows: number[][] = new Array(2 * n);
+    const dRe = new Float64Array(7);
+    const dIm = new Float64Array(7);
+    environmentPhasor(freqHz, fRef, q.alphaRef, q.tau, step, pc, ps);
+    for (let i = 0; i < n; i++) {
+      const f = freqHz[i];
+      const x = f / q.fr - 1;
+      const u = 2 * q.ql * x;
+      const d = 1 / (1 + u * u);
+      const lr = d;
+      const li = -u * d;
+      // KL, L² (complex)
+      const klr = kr * lr - ki * li;
+      const kli = kr * li + ki * lr;
+      const l2r = lr * lr - li * li;
+      const l2i = 2 * lr * li;
+      const kl2r = kr * l2r - ki * l2i;
+      const kl2i = kr * l2i + ki * l2r;
+      const sr = 1 - klr;
+      const si = -kli;
+      const br = q.a * pc[i];
+      const bi = q.a * ps[i];
+      const m_r = br * sr - bi * si;
+      const m_i = br * si + bi * sr;
+      // ∂S/∂p for the resonance parameters, then ∂m = B·∂S.
+      // ∂S/∂Q = −KL/Q + KL²·2ix ; ∂S/∂Qc = KL/Qc ; ∂S/∂φ = −iKL ; ∂S/∂fr = −KL²·2iQ f/fr².
+      const dsQr = -klr / q.ql - 2 * x * kl2i;
+      const dsQi = -kli / q.ql + 2 * x * kl2r;
+      const dsCr = klr / q.qc;
+      const dsCi = kli / q.qc;
+      const cf = (2 * q.ql * f) / (q.fr * q.fr);
+      const dsFr = cf * kl2i;
+      const dsFi = -cf * kl2r;
+      const dsPr = kli;
+      const dsPi = -klr;
+      const w = -2 * Math.PI * (f - fRef);
+      // a, alpha_ref, tau
+      dRe[0] = m_r / q.a; dIm[0] = m_i / q.a;
+      dRe[1] = -m_i; dIm[1] = m_r;
+      dRe[2] = -w * m_i; dIm[2] = w * m_r;
+      dRe[3] = br * dsFr - bi * dsFi; dIm[3] = br * dsFi + bi * dsFr;
+      dRe[4] = br * dsQr - bi * dsQi; dIm[4] = br * dsQi + bi * dsQr;
+      dRe[5] = br * dsCr - bi * dsCi; dIm[5] = br * dsCi + bi * dsCr;
+      dRe[6] = br * dsPr - bi * dsPi; dIm[6] = br * dsPi + bi * dsPr;
+      if (identity && col.length === 7) {
+        rows[i] = [-dRe[0] * inv, -dRe[1] * inv, -dRe[2] * inv, -dRe[3] * inv, -dRe[4] * inv, -dRe[5] * inv, -dRe[6] * inv];
+        rows[n + i] = [-dIm[0] * inv, -dIm[1] * inv, -dIm[2] * inv, -dIm[3] * inv, -dIm[4] * inv, -dIm[5] * inv, -dIm[6] * inv];
+      } else {
+        const rowR = new Array<number>(col.length);
+        const rowI = new Array<number>(col.length);
+        for (let j = 0; j < col.length; j++) {
+          rowR[j] = -dRe[col[j]] * inv;
+          rowI[j] = -dIm[col[j]] * inv;
+        }
+        rows[i] = rowR;
+        rows[n + i] = rowI;
+      }
+    }
+    return rows;
+  };
+  const specs: ParameterSpec[] = [
+    { name: 'a', value: aInit, min: 0 },
+    { name: 'alpha_ref', value: alphaRefInit },
+    { name: 'tau', value: tau, vary: opts.delayS === undefined },
+    { name: 'fr', value: frInit },
+    { name: 'ql', value: qlInit, min: 1 },
+    { name: 'qc', value: qcInit, min: 1e-6 },
+  ];
+  if (notch) specs.push({ name: 'phi', value: phiInit, min: -Math.PI, max: Math.PI });
+  const initialOk = [aInit, alphaRefInit, frInit, qlInit, qcInit, phiInit].every(Number.isFinite) && aInit > 0 && qcInit > 0;
+  let fit: FitResult | undefined;
+  if (initialOk) {
+    fit = leastSquares(residual, specs, { maxIterations: opts.maxIterations ?? 100, xtol: 1e-12, ftol: 1e-12 }, jacobian);
+  }
+
+  // Values to judge: the refinement when it converged, else the algebraic estimate.
+  const converged = fit !== undefined && fit.success;
+  const v: ModelPoint = converged
+    ? point(Object.fromEntries(Object.entries(fit!.params).map(([k, p]) => [k, p.value])))
+    : { a: aInit, alphaRef: alphaRefInit, tau, fr: frInit, ql: qlInit, qc: qcInit, phi: phiInit };
+  const finite = [v.a, v.alphaRef, v.tau, v.fr, v.ql, v.qc, v.phi].every(Number.isFinite) && v.ql > 0 && v.qc > 0 && v.a > 0;
+
+  // Significance against a resonance-free background a·e^{iα}·e^{−2πifτ} at the same τ.
+  let deltaChi2: number | null = null;
+  let noiseRms: number | null = null;
+  if (finite) {
+    modelInto(geometry, freqHz, fRef, v, mr, mi, step, pc, ps);
+    let ssRes = 0;
+    for (let i = 0; i < n; i++) ssRes += (re[i] - mr[i]) ** 2 + (im[i] - mi[i]) ** 2;
+    removeDelay(freqHz, re, im, fRef, v.tau, wr, wi, step);
+    let mR = 0;
+    let mI = 0;
+    for (let i = 0; i < n; i++) {
+      mR += wr[i];
+      mI += wi[i];
+    }
+    mR /= n;
+    mI /= n;
+    let ssBg = 0;
+    for (let i = 0; i < n; i++) ssBg += (wr[i] - mR) ** 2 + (wi[i] - mI) ** 2;
+    const dof = 2 * n - names.length;
+    const sigma2 = Math.max(ssRes / dof, 1e-300);
+    noiseRms = Math.sqrt(2 * sigma2);
+    deltaChi2 = (ssBg - ssRes) / sigma2;
+  }
+
+  const radius = finite ? (notch ? (v.a * v.ql) / (2 * v.qc) : (v.a * v.ql) / v.qc) : null;
+  const snr = radius !== null && noiseRms !== null ? (2 * radius) / noiseRms : null;
+  const linewidth = finite ? v.fr / v.ql : null;
+
+  // Classification: absence first (nothing to report), then failure, then weak signal.
+  let flag: TraceFlag = null;
+  let reason: string | null = null;
+  if (finite && linewidth !== null) {
+    if (v.fr < f0 || v.fr > f1) {
+      flag = 'no_resonance';
+      reason = `no resonance in the window: fitted f_r = ${fmtHz(v.fr)} lies outside ${fmtHz(f0)} – ${fmtHz(f1)}`;
+    } else if (span / linewidth < MIN_LINEWIDTHS_IN_SPAN) {
+      flag = 'no_resonance';
+      reason = `linewidth not resolved: f_r/Q_l = ${fmtHz(linewidth)} but the window spans only ${(span / linewidth).toFixed(2)} linewidths (need ≥ ${MIN_LINEWIDTHS_IN_SPAN})`;
+    } else if (linewidth / meanStep < MIN_POINTS_PER_LINEWIDTH) {
+      flag = 'no_resonance';
+      reason = `linewidth not resolved: f_r/Q_l = ${fmtHz(linewidth)} is only ${(linewidth / meanStep).toFixed(2)} frequency steps (need ≥ ${MIN_POINTS_PER_LINEWIDTH})`;
+    } else if (deltaChi2 !== null && deltaChi2 < minDeltaChi2) {
+      flag = 'no_resonance';
+      reason = `no resonance in the window: the resonance model improves χ² over a flat background by only ${deltaChi2.toFixed(1)} (need ≥ ${minDeltaChi2}); the dip is comparable to the noise`;
+    }
+  }
+  if (flag === null && !converged) {
+    flag = 'fit_failed';
+    reason = fit === undefined
+      ? 'fit failed: the algebraic estimate is not finite (circle or off-resonant point degenerate)'
+      : `fit failed: complex refinement did not converge (${fit.message})`;
+  } else if (flag === null && !finite) {
+    flag = 'fit_failed';
+    reason = 'fit failed: the refined parameters are not finite or not positive';
+  }
+  if (flag === 'no_resonance' || flag === 'fit_failed') {
+    const out = nullResult(geometry, fRef, Math.SQRT2 * sigmaOff, flag, reason as string, t0);
+    out.fit = fit;
+    out.initial = initial;
+    out.deltaChi2 = deltaChi2;
+    out.noiseRms = noiseRms;
+    out.elapsedMs = now() - t0;
+    return out;
+  }
+  if (snr !== null && snr < minSnr) {
+    flag = 'low_snr';
+    reason = `SNR too low: circle diameter / noise rms = ${snr.toFixed(2)} (need ≥ ${minSnr})`;
+  }
+
+  // Q_i and its standard error from the covariance (first-order propagation).
+  const par = fit!.params;
+  const cov = fit!.covariance;
+  const vn = fit!.varyingNames;
+  const sd = (k: string): number | null => {
+    const s = par[k]?.stderr;
+    return s !== undefined && s !== null && Number.isFinite(s) ? s : null;
+  };
+  const g = 1 / v.ql - (notch ? Math.cos(v.phi) / v.qc : 1 / v.qc);
+  let qi: number | null = null;
+  let qiStderr: number | null = null;
+  if (g > 0 && Number.isFinite(g)) {
+    qi = 1 / g;
+    if (cov) {
+      const grad: Record<string, number> = {
+        ql: -1 / (v.ql * v.ql),
+        qc: (notch ? Math.cos(v.phi) : 1) / (v.qc * v.qc),
+        phi: notch ? Math.sin(v.phi) / v.qc : 0,
+      };
+      let varG = 0;
+      let ok = true;
+      for (const ka of ['ql', 'qc', 'phi']) {
+        const ia = vn.indexOf(ka);
+        if (ia < 0 || grad[ka] === 0) continue;
+        if (par[ka].atBound) ok = false;
+        for (const kb of ['ql', 'qc', 'phi']) {
+          const ib = vn.indexOf(kb);
+          if (ib < 0 || grad[kb] === 0) continue;
+          varG += grad[ka] * grad[kb] * cov[ia][ib];
+        }
+      }
+      if (ok && varG >= 0 && Number.isFinite(varG)) qiStderr = Math.sqrt(varG) / (g * g);
+    }
+  } else if (reason === null) {
+    reason = `Q_i not resolved: 1/Q_l − ${notch ? 'cos φ/|Q_c|' : '1/Q_c'} = ${g.toExponential(3)} ≤ 0 (internal losses below the resolution of this trace)`;
+  }
+
+  const alphaAbs = wrapAngle(v.alphaRef + 2 * Math.PI * fRef * v.tau);
+  const kk = notch ? v.ql / (2 * v.qc) : v.ql / v.qc;
+  // Centre a·e^{iα}(1 − r_n·e^{iφ}) in the frame S·e^{+2πifτ}.
+  const cr = 1 - kk * Math.cos(v.phi);
+  const ci = -kk * Math.sin(v.phi);
+  return {
+    geometry,
+    frHz: v.fr,
+    frStderrHz: sd('fr'),
+    ql: v.ql,
+    qlStderr: sd('ql'),
+    qcAbs: v.qc,
+    qcStderr: sd('qc'),
+    phiRad: notch ? wrapAngle(v.phi) : 0,
+    phiStderrRad: notch ? sd('phi') : null,
+    qi,
+    qiStderr,
+    a: v.a,
+    alphaRad: alphaAbs,
+    delayS: v.tau,
+    delayStderrS: sd('tau'),
+    snr,
+    noiseRms,
+    noiseRmsOffResonance: Math.SQRT2 * sigmaOff,
+    deltaChi2,
+    circle: {
+      xc: v.a * (Math.cos(alphaAbs) * cr - Math.sin(alphaAbs) * ci),
+      yc: v.a * (Math.sin(alphaAbs) * cr + Math.cos(alphaAbs) * ci),
+      r: v.a * kk,
+    },
+    flag,
+    reason,
+    fit,
+    fRefHz: fRef,
+    initial,
+    elapsedMs: now() - t0,
+  };
+}
+
+const finiteOrNull = (x: number | null | undefined): number | null => (x !== null && x !== undefined && Number.isFinite(x) ? x : null);
+
+/** Maps one extraction to the calibration JSON trace entry (contract.ts TraceJson). */
+export function traceToJson(bias: number, e: TraceExtraction, rows?: [number, number] | null, file?: string | null): TraceJson {
+  return {
+    bias,
+    fr_hz: finiteOrNull(e.frHz),
+    fr_stderr_hz: finiteOrNull(e.frStderrHz),
+    ql: finiteOrNull(e.ql),
+    ql_stderr: finiteOrNull(e.qlStderr),
+    qc: finiteOrNull(e.qcAbs),
+    qc_stderr: finiteOrNull(e.qcStderr),
+    qi: finiteOrNull(e.qi),
+    qi_stderr: finiteOrNull(e.qiStderr),
+    phi_rad: e.geometry === 'notch' ? finiteOrNull(e.phiRad) : null,
+    flag: e.flag,
+    reason: e.reason,
+    snr: finiteOrNull(e.snr),
+    rows: rows ?? null,
+    file: file ?? null,
+  };
+}
+
+export interface SweepTrace {
+  bias: number;
+  freqHz: ArrayLike<number>;
+  re: ArrayLike<number>;
+  im: ArrayLike<number>;
+  rows?: [number, number] | null;
+  file?: string | null;
+}
+
+export interface SweepSummary {
+  total: number;
+  good: number;
+  noResonance: number;
+  lowSnr: number;
+  fitFailed: number;
+  /** Mean wall time per trace, ms. */
+  msPerTrace: number;
+  /** One line per flagged trace: bias, where, reason. */
+  flagged: string[];
+}
+
+export interface SweepExtraction {
+  traces: TraceJson[];
+  results: TraceExtraction[];
+  summary: SweepSummary;
+}
+
+/**
+ * Runs every trace of a sweep. Bad input in a trace throws with the trace's bias, file and rows
+ * in the message; physics failures are flagged per trace.
+ */
+export function extractSweep(traces: readonly SweepTrace[], opts: ExtractOptions): SweepExtraction {
+  const t0 = now();
+  const results: TraceExtraction[] = [];
+  const json: TraceJson[] = [];
+  const summary: SweepSummary = { total: traces.length, good: 0, noResonance: 0, lowSnr: 0, fitFailed: 0, msPerTrace: 0, flagged: [] };
+  traces.forEach((t, k) => {
+    const where = [
+      t.file ? `file ${t.file}` : null,
+      t.rows ? `rows ${t.rows[0]}–${t.rows[1]}` : null,
+    ].filter(Boolean).join(', ');
+    let e: TraceExtraction;
+    try {
+      e = extractResonance(t.freqHz, t.re, t.im, opts);
+    } catch (err) {
+      const msg = err instanceof Error ? err.message : String(err);
+      throw new Error(`trace ${k + 1} of ${traces.length} (bias ${t.bias}${where ? `, ${where}` : ''}): ${msg}`);
+    }
+    results.push(e);
+    json.push(traceToJson(t.bias, e, t.rows, t.file));
+    if (e.flag === null) summary.good++;
+    else {
+      if (e.flag === 'no_resonance') summary.noResonance++;
+      else if (e.flag === 'low_snr') summary.lowSnr++;
+      else summary.fitFailed++;
+      summary.flagged.push(`bias ${t.bias}${where ? ` (${where})` : ''}: ${e.reason}`);
+    }
+  });
+  summary.msPerTrace = traces.length ? (now() - t0) / traces.length : 0;
+  return { traces: json, results, summary };
+}

@@ -1,0 +1,6 @@
+// Public surface of the per-trace resonance extraction.
+export * from './models';
+export { fitCirclePratt } from './circle';
+export type { Circle, CircleFit } from './circle';
+export { extractResonance, extractSweep, traceToJson } from './extract';
+export type { ExtractOptions, TraceExtraction, TraceFlag, SweepTrace, SweepExtraction, SweepSummary } from './extract';
