@@ -251,11 +251,10 @@ export function leastSquares(
     if (ndata >= 0 && out.length !== ndata) {
       return { ok: false, why: `the residual function returned ${out.length} values instead of ${ndata}` };
     }
-    const r = new Float64Array(out.length);
+    const r = Float64Array.from(out);
     for (let i = 0; i < r.length; i++) {
-      const v = out[i];
-      if (typeof v !== 'number' || !Number.isFinite(v)) return { ok: false, why: `residual ${i} is ${v}` };
-      r[i] = v;
+      // Float64Array.from turns non-numbers into NaN, so one finiteness test covers both.
+      if (!Number.isFinite(r[i])) return { ok: false, why: `residual ${i} is ${out[i]}` };
     }
     return { ok: true, r };
   };
@@ -348,24 +347,36 @@ export function leastSquares(
   let message = '';
   let stopFailure = '';
 
+  let weightedJac = new Float64Array(0);
+  const weightedRes = new Float64Array(n);
+  /** A = J̃ᵀJ̃, g = J̃ᵀr̃ with rows scaled by √ρ′ (plain J and r for the linear loss). */
   const buildNormalEquations = (jc: Float64Array) => {
-    for (let i = 0; i < n; i++) {
-      if (loss === 'linear') {
-        sqrtw[i] = 1;
-      } else {
+    let jw = jc;
+    let rw = r;
+    if (loss !== 'linear') {
+      if (weightedJac.length !== jc.length) weightedJac = new Float64Array(jc.length);
+      for (let i = 0; i < n; i++) {
         const u = r[i] / fScale;
         sqrtw[i] = Math.sqrt(rhoPrime(loss, u * u));
+        weightedRes[i] = sqrtw[i] * r[i];
       }
+      for (let a = 0; a < k; a++) for (let i = 0; i < n; i++) weightedJac[a * n + i] = jc[a * n + i] * sqrtw[i];
+      jw = weightedJac;
+      rw = weightedRes;
+    } else {
+      sqrtw.fill(1);
     }
     for (let a = 0; a < k; a++) {
+      const oa = a * n;
       let ga = 0;
-      for (let i = 0; i < n; i++) ga += jc[a * n + i] * sqrtw[i] * sqrtw[i] * r[i];
+      for (let i = 0; i < n; i++) ga += jw[oa + i] * rw[i];
       g[a] = ga;
       for (let b = 0; b <= a; b++) {
-        let s = 0;
-        for (let i = 0; i < n; i++) s += jc[a * n + i] * jc[b * n + i] * sqrtw[i] * sqrtw[i];
-        A[a * k + b] = s;
-        A[b * k + a] = s;
+        const ob = b * n;
+        let sum = 0;
+        for (let i = 0; i < n; i++) sum += jw[oa + i] * jw[ob + i];
+        A[a * k + b] = sum;
+        A[b * k + a] = sum;
       }
       if (A[a * k + a] > dmax[a]) dmax[a] = A[a * k + a];
     }

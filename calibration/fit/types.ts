@@ -33,14 +33,18 @@ export interface LeastSquaresOptions {
   loss?: Loss;
   /** Residual scale at which the robust loss starts to soften (in units of the residuals). Default 1. */
   fScale?: number;
+  /**
+   * Maximum number of trial steps (each costs one residual evaluation; a Jacobian follows every
+   * accepted step). Default 200·(nvarys + 1).
+   */
   maxIterations?: number;
-  /** Relative tolerance on the cost decrease. */
+  /** Relative tolerance on the cost decrease (actual and predicted). Default 1e-10. */
   ftol?: number;
-  /** Relative tolerance on the step size. */
+  /** Relative tolerance on the step size, in Jacobian-column-scaled parameters. Default 1e-10. */
   xtol?: number;
-  /** Tolerance on the scaled gradient. */
+  /** Tolerance on the scaled gradient: max cosine between residual vector and a Jacobian column. Default 1e-10. */
   gtol?: number;
-  /** Relative step for forward-difference Jacobians. */
+  /** Relative step for forward-difference Jacobians. Default √ε ≈ 1.49e-8. */
   diffStep?: number;
   /** false skips the covariance (and stderr, correlation) at the solution, e.g. for the losing starts of a multi-start fit. Default true. */
   computeCovariance?: boolean;
