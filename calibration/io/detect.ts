@@ -1,0 +1,64 @@
+/** Which reader a file needs, from its extension and header. */
+import { classifyAll, single } from './common';
+import { IssueLog, runWithLog } from './issues';
+import { parsePhaseFlux, readPhaseFlux } from './phase';
+import { readRaw } from './raw';
+import { readHead, type TableHead } from './table';
+import { parseTouchstoneSet, portsFromName } from './touchstone';
+import { readTuning } from './tuning';
+import type { InputKind, ParseOptions, SweepData } from './types';
+
+const OPTION_LINE = /^#\s*(?:(?:hz|khz|mhz|ghz|s|y|z|h|g|db|ma|ri|r\s+[\d.eE+-]+)\s*)+$/i;
+
+function looksLikeTouchstone(text: string): boolean {
+  for (const line of text.slice(0, 20000).split(/\r?\n/)) {
+    const t = line.replace(/!.*/, '').trim();
+    if (t === '') continue;
+    return OPTION_LINE.test(t);
+  }
+  return false;
+}
+
+function kindFromHead(head: TableHead, log: IssueLog): InputKind {
+  const cols = classifyAll(head);
+  const has = (r: string): boolean => cols.some((c) => c.role === r);
+  const complex = (has('re') && has('im')) || has('mag_db') || has('mag_lin');
+  if (has('frequency') && (complex || (has('re') || has('im')))) return 'raw_complex';
+  if (has('phase') && !complex) return 'phase_flux';
+  if (has('frequency') && has('phase')) return 'raw_complex';
+  if (has('bias') && has('frequency')) return 'tuning_points';
+  single(head, cols, 'bias', log); // reports an ambiguous bias before the generic message
+  return log.fatal(
+    head.headerRow,
+    null,
+    `cannot tell what this file holds; columns found: ${cols.map((c) => `'${c.header}'`).join(', ')}. Expected bias + resonance frequency (tuning points), bias + frequency + S21/S11 columns (raw sweep) or bias + phase (phase versus flux)`,
+  );
+}
+
+export function detectKind(fileName: string, text: string): InputKind {
+  if (portsFromName(fileName) !== null) return 'touchstone';
+  const log = new IssueLog(fileName);
+  return runWithLog(log, () => {
+    const head = readHead(fileName, text, log);
+    if (looksLikeTouchstone(head.text)) return 'touchstone';
+    return kindFromHead(head, log);
+  });
+}
+
+export function parseSweepText(fileName: string, text: string, opts: ParseOptions = {}): SweepData {
+  let kind = opts.kind;
+  if (!kind) kind = detectKind(fileName, text);
+  if (kind === 'touchstone') {
+    const ports = portsFromName(fileName);
+    const port = opts.geometry === 'reflection' ? 'S11' : opts.geometry === 'notch' && ports !== 1 ? 'S21' : undefined;
+    return parseTouchstoneSet([{ name: fileName, text }], { port, geometry: opts.geometry });
+  }
+  if (kind === 'phase_flux') return parsePhaseFlux(fileName, text, opts);
+  const log = new IssueLog(fileName);
+  return runWithLog(log, () => {
+    const head = readHead(fileName, text, log);
+    return kind === 'raw_complex' ? readRaw(head, log, opts) : readTuning(head, log);
+  });
+}
+
+export { readPhaseFlux };
