@@ -109,6 +109,20 @@ export function solveExactRoot(g: number, c = 0): number {
   return x;
 }
 
+/**
+ * Exact root and its sensitivities: x, ∂x/∂g and ∂x/∂c for x·tan x + c·x² = g (implicit
+ * differentiation: ∂x/∂g = 1/F_x, ∂x/∂c = −x²/F_x, F_x written times cos²x so it stays finite).
+ * Used by the fits for analytic Jacobians.
+ */
+export function exactRootSensitivity(g: number, c = 0): { x: number; dxdg: number; dxdc: number } {
+  const x = solveExactRoot(g, c);
+  if (x === 0) return { x, dxdg: 0, dxdc: 0 };
+  const cs = Math.cos(x);
+  const cos2 = cs * cs;
+  const N = Math.sin(x) * cs + x + 2 * c * x * cos2;
+  return { x, dxdg: cos2 / N, dxdc: (-x * x * cos2) / N };
+}
+
 /** Resonance frequency at flux φ (Φ0 units), Hz. */
 export function resonanceFrequency(phi: number, p: SquidLineParams, model: TuningModel): number {
   const gamma = participation(phi, p);

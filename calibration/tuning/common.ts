@@ -1,0 +1,225 @@
+/**
+ * Helpers shared by the tuning-curve and phase-versus-flux fits: input checks, robust
+ * statistics, the dominant period of a sampled curve, phase unwrapping, offset convention.
+ */
+import FFT from 'fft.js';
+import type { Loss } from '../fit/types';
+
+/** Bad input: says what is wrong and at which point (0-based index into the given points). */
+export class TuningInputError extends Error {
+  constructor(message: string, public readonly index: number | null = null, public readonly field: string | null = null) {
+    super(message);
+    this.name = 'TuningInputError';
+  }
+}
+
+export function median(values: ArrayLike<number>): number {
+  const a = Array.from(values).sort((p, q) => p - q);
+  const n = a.length;
+  if (n === 0) return 0;
+  return n % 2 ? a[(n - 1) / 2] : 0.5 * (a[n / 2 - 1] + a[n / 2]);
+}
+
+/** 1.4826·MAD: the standard deviation of Gaussian data, insensitive to a few outliers (common practice). */
+export function robustSigma(values: ArrayLike<number>): number {
+  const m = median(values);
+  const dev = Array.from(values, (v) => Math.abs(v - m));
+  return 1.4826 * median(dev);
+}
+
+/**
+ * Noise estimate of a smooth sampled curve from second differences: for white noise σ,
+ * y[i+1] − 2y[i] + y[i−1] has standard deviation σ·√6. Curvature inflates it (an upper bound).
+ */
+export function noiseFromSecondDifferences(y: ArrayLike<number>): number {
+  const d: number[] = [];
+  for (let i = 1; i + 1 < y.length; i++) d.push(y[i + 1] - 2 * y[i] + y[i - 1]);
+  if (d.length === 0) return 0;
+  return (1.4826 * median(d.map(Math.abs))) / Math.sqrt(6);
+}
+
+/** Running median over a window of 2h+1 points (kills isolated spurious picks before peak finding). */
+export function runningMedian(y: ArrayLike<number>, h = 2): number[] {
+  const out: number[] = [];
+  for (let i = 0; i < y.length; i++) {
+    const lo = Math.max(0, i - h);
+    const hi = Math.min(y.length - 1, i + h);
+    const w: number[] = [];
+    for (let j = lo; j <= hi; j++) w.push(y[j]);
+    out.push(median(w));
+  }
+  return out;
+}
+
+/** Order of the points by increasing bias (ties keep file order). */
+export function orderByBias(bias: ArrayLike<number>): number[] {
+  return Array.from({ length: bias.length }, (_, i) => i).sort((a, b) => bias[a] - bias[b] || a - b);
+}
+
+/** Robust loss ρ(z), z = (r/fScale)², as documented in calibration/fit/types.ts. */
+export function rho(loss: Loss, z: number): number {
+  switch (loss) {
+    case 'linear':
+      return z;
+    case 'soft_l1':
+      return 2 * (Math.sqrt(1 + z) - 1);
+    case 'huber':
+      return z <= 1 ? z : 2 * Math.sqrt(z) - 1;
+    case 'cauchy':
+      return Math.log1p(z);
+  }
+}
+
+/** Robust cost ½·fScale²·Σρ((r/fScale)²), the quantity a robust least-squares fit minimises. */
+export function robustCost(residuals: ArrayLike<number>, loss: Loss, fScale: number): number {
+  let s = 0;
+  for (let i = 0; i < residuals.length; i++) {
+    const r = residuals[i];
+    s += Number.isFinite(r) ? rho(loss, (r / fScale) ** 2) : Infinity;
+  }
+  return 0.5 * fScale * fScale * s;
+}
+
+export interface PeriodEstimate {
+  /** Dominant period in bias units (always positive). */
+  period: number;
+  /** Number of periods the sweep spans at that period. */
+  cycles: number;
+  /** Spectral power of the peak relative to the total (0..1): how periodic the curve looks. */
+  peakFraction: number;
+}
+
+/**
+ * Dominant period of y(x): linear resampling onto a uniform grid, mean removed, Hann window,
+ * zero padding ×8, FFT (fft.js), strongest bin above the first, parabolic interpolation of
+ * the log power around it. x must be sorted increasing. Returns null for < 8 points.
+ */
+export function dominantPeriod(x: ArrayLike<number>, y: ArrayLike<number>): PeriodEstimate | null {
+  const n = x.length;
+  if (n < 8) return null;
+  const span = x[n - 1] - x[0];
+  if (!(span > 0)) return null;
+  const m = 256;
+  const size = 2048;
+  const grid = new Float64Array(size);
+  let j = 0;
+  let mean = 0;
+  const samples = new Float64Array(m);
+  for (let k = 0; k < m; k++) {
+    const xk = x[0] + (span * k) / (m - 1);
+    while (j + 1 < n - 1 && x[j + 1] <= xk) j++;
+    const x0 = x[j];
+    const x1 = x[j + 1];
+    const t = x1 > x0 ? (xk - x0) / (x1 - x0) : 0;
+    samples[k] = y[j] + Math.min(Math.max(t, 0), 1) * (y[j + 1] - y[j]);
+    mean += samples[k] / m;
+  }
+  for (let k = 0; k < m; k++) {
+    const w = 0.5 - 0.5 * Math.cos((2 * Math.PI * k) / (m - 1));
+    grid[k] = (samples[k] - mean) * w;
+  }
+  const fft = new FFT(size);
+  const out = fft.createComplexArray() as number[];
+  fft.realTransform(out, Array.from(grid));
+  const power = (k: number) => out[2 * k] * out[2 * k] + out[2 * k + 1] * out[2 * k + 1];
+  // grid spacing dx = span/(m−1); bin k ↔ k/(size·dx) cycles per bias unit
+  const dx = span / (m - 1);
+  const kMin = Math.max(2, Math.ceil((size * dx) / span)); // at least ~1 cycle over the span
+  const kMax = size / 2 - 1;
+  let best = -1;
+  let bestP = -Infinity;
+  let total = 0;
+  for (let k = 1; k <= kMax; k++) {
+    const p = power(k);
+    total += p;
+    if (k >= kMin && p > bestP) {
+      bestP = p;
+      best = k;
+    }
+  }
+  if (best < 0 || !(bestP > 0)) return null;
+  let kPeak = best;
+  if (best > 1 && best < kMax) {
+    const a = Math.log(power(best - 1) + 1e-300);
+    const b = Math.log(bestP);
+    const c = Math.log(power(best + 1) + 1e-300);
+    const den = a - 2 * b + c;
+    if (den < 0) kPeak = best + (0.5 * (a - c)) / den;
+  }
+  const period = (size * dx) / kPeak;
+  // fraction of power within ±8 padded bins (the Hann main lobe is ±16 padded bins wide)
+  let near = 0;
+  for (let k = Math.max(1, best - 8); k <= Math.min(kMax, best + 8); k++) near += power(k);
+  return { period, cycles: span / period, peakFraction: total > 0 ? near / total : 0 };
+}
+
+/** Unwrap a phase sequence (rad) in the given order: each step is taken modulo 2π into (−π, π]. */
+export function unwrapPhase(phase: ArrayLike<number>): number[] {
+  const out: number[] = [];
+  for (let i = 0; i < phase.length; i++) {
+    if (i === 0) {
+      out.push(phase[0]);
+      continue;
+    }
+    out.push(out[i - 1] + wrapToPi(phase[i] - phase[i - 1]));
+  }
+  return out;
+}
+
+/** Angle wrapped into (−π, π]. */
+export function wrapToPi(a: number): number {
+  const twoPi = 2 * Math.PI;
+  let w = a - twoPi * Math.floor((a + Math.PI) / twoPi);
+  if (w <= -Math.PI) w += twoPi;
+  if (w > Math.PI) w -= twoPi;
+  return w;
+}
+
+/**
+ * Offset convention of the calibration contract: the bias of a frequency maximum (integer flux)
+ * nearest the sweep centre. Shifts the offset by whole periods.
+ */
+export function offsetNearestCentre(offset: number, period: number, centre: number): number {
+  if (!(period !== 0) || !Number.isFinite(period)) return offset;
+  const k = Math.round((centre - offset) / period);
+  return offset + k * period;
+}
+
+/** 'current' | 'voltage' | 'unknown' from a bias unit such as mA, µA, V, mV. */
+export function biasQuantity(unit: string | undefined | null): 'current' | 'voltage' | 'unknown' {
+  const u = (unit ?? '').trim().replace('μ', 'µ');
+  if (/^(p|n|u|µ|m|k)?A$/.test(u)) return 'current';
+  if (/^(p|n|u|µ|m|k)?V$/.test(u)) return 'voltage';
+  return 'unknown';
+}
+
+/** Check a numeric field of a point; throws TuningInputError naming the point and field. */
+export function requireFinite(value: unknown, index: number, field: string): number {
+  if (typeof value !== 'number' || !Number.isFinite(value)) {
+    throw new TuningInputError(`point ${index}: ${field} must be a finite number (got ${String(value)})`, index, field);
+  }
+  return value;
+}
+
+/** Least squares on a design [1, s_i] with weights w_i: returns [a, b] minimising Σw(y − a − b s)². */
+export function weightedLine(s: ArrayLike<number>, y: ArrayLike<number>, w: ArrayLike<number>): [number, number] | null {
+  let sw = 0;
+  let ss = 0;
+  let sy = 0;
+  let sss = 0;
+  let ssy = 0;
+  for (let i = 0; i < s.length; i++) {
+    const wi = w[i];
+    if (!(wi > 0)) continue;
+    sw += wi;
+    ss += wi * s[i];
+    sy += wi * y[i];
+    sss += wi * s[i] * s[i];
+    ssy += wi * s[i] * y[i];
+  }
+  const det = sw * sss - ss * ss;
+  if (!(sw > 0) || !(Math.abs(det) > 1e-12 * sw * sss)) return null;
+  const b = (sw * ssy - ss * sy) / det;
+  const a = (sy - b * ss) / sw;
+  return Number.isFinite(a) && Number.isFinite(b) ? [a, b] : null;
+}
