@@ -95,6 +95,11 @@ export interface TraceExtraction {
 
 const DEFAULT_MIN_SNR = 4;
 const DEFAULT_MIN_DELTA_CHI2 = 50;
+/**
+ * Good traces converge in 2–6 iterations from the algebraic start; a cap keeps traces without a
+ * resolvable resonance (which make LM wander) from costing 100× a good one in a sweep.
+ */
+const DEFAULT_MAX_ITERATIONS = 30;
 /** Window must cover this many linewidths (Q_l·span/f_r), common practice. */
 const MIN_LINEWIDTHS_IN_SPAN = 2;
 /** A linewidth must cover this many frequency steps to be resolved, common practice. */
@@ -396,21 +401,28 @@ export function extractResonance(
     { name: 'a', value: aInit, min: 0 },
     { name: 'alpha_ref', value: alphaRefInit },
     { name: 'tau', value: tau, vary: opts.delayS === undefined },
-    { name: 'fr', value: frInit },
+    // f_r may leave the window (then flagged) but not wander off without bound.
+    { name: 'fr', value: frInit, min: f0 - span, max: f1 + span },
     { name: 'ql', value: qlInit, min: 1 },
     { name: 'qc', value: qcInit, min: 1e-6 },
   ];
   if (notch) specs.push({ name: 'phi', value: phiInit, min: -Math.PI, max: Math.PI });
   const initialOk = [aInit, alphaRefInit, frInit, qlInit, qcInit, phiInit].every(Number.isFinite) && aInit > 0 && qcInit > 0;
+  // An algebraic f_r more than half a span outside the window means only a tail (or nothing) is
+  // visible: refining would only wander, and the trace is flagged from the estimate.
+  const initialNearWindow = frInit > f0 - 0.5 * span && frInit < f1 + 0.5 * span;
   let fit: FitResult | undefined;
-  if (initialOk) {
-    fit = leastSquares(residual, specs, { maxIterations: opts.maxIterations ?? 100, xtol: 1e-12, ftol: 1e-12 }, jacobian);
+  if (initialOk && initialNearWindow) {
+    fit = leastSquares(residual, specs, { maxIterations: opts.maxIterations ?? DEFAULT_MAX_ITERATIONS, xtol: 1e-12, ftol: 1e-12 }, jacobian);
   }
 
   // Values to judge: the refinement when it converged, else the algebraic estimate.
+  // A non-converged refinement still returns its last accepted point, which fits at least as well
+  // as the algebraic start: judge presence of a resonance on it.
   const converged = fit !== undefined && fit.success;
-  const v: ModelPoint = converged
-    ? point(Object.fromEntries(Object.entries(fit!.params).map(([k, p]) => [k, p.value])))
+  const fitPoint = fit ? point(Object.fromEntries(Object.entries(fit.params).map(([k, p]) => [k, p.value]))) : null;
+  const v: ModelPoint = fitPoint && Object.values(fitPoint).every(Number.isFinite)
+    ? fitPoint
     : { a: aInit, alphaRef: alphaRefInit, tau, fr: frInit, ql: qlInit, qc: qcInit, phi: phiInit };
   const finite = [v.a, v.alphaRef, v.tau, v.fr, v.ql, v.qc, v.phi].every(Number.isFinite) && v.ql > 0 && v.qc > 0 && v.a > 0;
 
@@ -448,7 +460,7 @@ export function extractResonance(
   if (finite && linewidth !== null) {
     if (v.fr < f0 || v.fr > f1) {
       flag = 'no_resonance';
-      reason = `no resonance in the window: fitted f_r = ${fmtHz(v.fr)} lies outside ${fmtHz(f0)} – ${fmtHz(f1)}`;
+      reason = `no resonance in the window: ${converged ? 'fitted' : 'estimated'} f_r = ${fmtHz(v.fr)} lies outside ${fmtHz(f0)} – ${fmtHz(f1)}`;
     } else if (span / linewidth < MIN_LINEWIDTHS_IN_SPAN) {
       flag = 'no_resonance';
       reason = `linewidth not resolved: f_r/Q_l = ${fmtHz(linewidth)} but the window spans only ${(span / linewidth).toFixed(2)} linewidths (need ≥ ${MIN_LINEWIDTHS_IN_SPAN})`;
