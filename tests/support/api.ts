@@ -30,3 +30,16 @@ export function linkIn(text: string, pathPart: string): URL {
   if (!m) throw new Error(`no link containing ${pathPart} in:\n${text}`);
   return new URL(m);
 }
+
+export const bearer = (token: string) => ({ Authorization: `Bearer ${token}` });
+
+/** Row counts of every application table, to prove a refused request wrote nothing. */
+export async function rowCounts(ds: import('typeorm').DataSource): Promise<Record<string, number>> {
+  const tables = ['lab', 'user', 'invitation', 'password_reset', 'api_token', 'audit_event', 'fab_batch', 'device', 'cooldown', 'mail_message'];
+  const out: Record<string, number> = {};
+  for (const t of tables) {
+    const [row] = await ds.query(`SELECT COUNT(*) AS n FROM \`${t}\``);
+    out[t] = Number(row.n);
+  }
+  return out;
+}
