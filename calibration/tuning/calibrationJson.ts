@@ -20,7 +20,15 @@ export interface CalibrationJsonExtras {
   coreVersion?: string;
 }
 
-const finite = (v: number, fallback = 0) => (Number.isFinite(v) ? v : fallback);
+const finite = (v: number, fallback = 0) => (Number.isFinite(v) ? v + 0 : fallback); // + 0 turns −0 into 0
+
+/** Deep copy with −0 → 0 and non-finite numbers → null, so the JSON round trip is exact. */
+function jsonSafe(v: unknown): unknown {
+  if (typeof v === 'number') return Number.isFinite(v) ? v + 0 : null;
+  if (Array.isArray(v)) return v.map(jsonSafe);
+  if (v && typeof v === 'object') return Object.fromEntries(Object.entries(v).map(([k, x]) => [k, jsonSafe(x)]));
+  return v;
+}
 
 function vwe(p: TuningParamValue): ValueWithError {
   const out: ValueWithError = { value: finite(p.value), stderr: p.stderr !== null && Number.isFinite(p.stderr) ? p.stderr : null, vary: p.vary };
@@ -96,7 +104,7 @@ export function tuningResultToCalibrationJson(r: TuningFitResult, extras: Calibr
     loss: r.loss,
     outliers: r.outliers.slice(),
     points: pointsJson(r.points, extras.rows),
-    derived: {
+    derived: jsonSafe({
       ...r.derived,
       symmetric_fit: r.symmetric,
       conventions: {
@@ -105,7 +113,7 @@ export function tuningResultToCalibrationJson(r: TuningFitResult, extras: Calibr
         flux_period_sign: 'not observable from a tuning curve (even in flux); sign as requested, default positive',
         outliers: '|residual/sigma| > 5 x 1.4826 MAD of the weighted residuals and |residual| > 1e-8 f0',
       },
-    },
+    }) as Record<string, unknown>,
     warnings,
     ...(extras.source !== undefined ? { source: extras.source } : {}),
   };
@@ -140,14 +148,14 @@ export function phaseResultToCalibrationJson(r: PhaseFitResult, extras: Calibrat
     loss: r.loss,
     outliers: r.outliers.slice(),
     points: pointsJson(r.points, extras.rows),
-    derived: {
+    derived: jsonSafe({
       ...r.derived,
       conventions: {
         flux: 'phi0 = (bias - flux_offset) / flux_period',
         flux_offset: 'bias of the phase maximum (tau_eff minimum) nearest the sweep centre',
         phase: 'theta = theta0 - 2 omega tau_eff(phi); residuals wrapped into (-pi, pi]; theta0 wrapped into (-pi, pi]',
       },
-    },
+    }) as Record<string, unknown>,
     warnings,
     ...(extras.source !== undefined ? { source: extras.source } : {}),
   };

@@ -140,8 +140,8 @@ export interface TuningFitResult {
 const REFERENCE_FLUXES = [0, 0.1, 0.2, 0.25, 0.3, 0.4];
 const GAMMA0_MAX = 10;
 
-/** Model f at every bias plus its parameter Jacobian (∂f/∂p), shared by the residual and the Jacobian. */
-function modelAndGradient(
+/** Model f at every bias plus its parameter Jacobian (∂f/∂p), shared by the residual and the Jacobian (exported for tests). */
+export function tuningModelWithGradient(
   bias: ArrayLike<number>,
   p: Readonly<Record<string, number>>,
   model: TuningModel,
@@ -254,7 +254,7 @@ function linearStart(
 }
 
 /** Candidate starting points from the data (see file header and the report of the helper). */
-function makeStarts(b: number[], y: number[], symmetric: boolean, scoreScale: number): Start[] {
+function makeStarts(b: number[], y: number[], scoreScale: number): Start[] {
   const n = b.length;
   const span = b[n - 1] - b[0];
   const smooth = runningMedian(y, 2);
@@ -289,7 +289,9 @@ function makeStarts(b: number[], y: number[], symmetric: boolean, scoreScale: nu
   if (!(est && est.cycles >= 1.5)) for (const m of [0.5, 1, 2, 4, 8]) periods.push(m * span);
   const offsets = [b[iMax]];
   if (vertex !== null && Math.abs(vertex - b[iMax]) > 1e-9 * span) offsets.push(vertex);
-  const ds = symmetric ? [0] : [0, 0.02, 0.05, 0.1, 0.2, 0.35, 0.6];
+  // the d grid is used even for a symmetric fit: with d = 0 a slightly wrong period maps points
+  // onto the lobe edge where 1/|cos πφ| explodes and the linear start is useless
+  const ds = [0, 0.02, 0.05, 0.1, 0.2, 0.35, 0.6];
   const starts: Start[] = [];
   const minPeriod = (4 * span) / Math.max(n - 1, 1);
   for (const P of periods) {
@@ -442,7 +444,7 @@ export function fitTuningCurve(points: readonly TuningPoint[], options: TuningFi
 
   // scale of the start scores: the point-to-point noise (upper bound), floored well above rounding
   const noise0 = Math.max(noiseFromSecondDifferences(ys), 1e-7 * fMax);
-  const starts = makeStarts(bs, ys, symmetric, noise0);
+  const starts = makeStarts(bs, ys, noise0);
   if (starts.length === 0) return failure('no starting point found: the curve does not look like a SQUID tuning curve');
 
   // σ for the first round: given, or the second-difference estimate
@@ -453,20 +455,20 @@ export function fitTuningCurve(points: readonly TuningPoint[], options: TuningFi
     const spec: ParameterSpec[] = [
       { name: 'f0_hz', value: s.f0, min: 0.5 * fMax, max: 20 * fMax, diffScale: 1e-3 * fMax },
       { name: 'gamma0', value: Math.min(Math.max(s.gamma0, 1e-6), GAMMA0_MAX), min: 1e-9, max: GAMMA0_MAX, diffScale: 1e-3 },
-      { name: 'asymmetry', value: symmetric ? 0 : Math.min(Math.max(s.d, 0), 1), min: 0, max: 1, vary: !symmetric && !holdD, diffScale: 1e-3 },
+      { name: 'asymmetry', value: holdD ? 0 : Math.min(Math.max(s.d, 0), 1), min: 0, max: 1, vary: !holdD, diffScale: 1e-3 },
       { name: 'flux_period', value: s.period, min: (2 * span) / Math.max(n - 1, 1), max: 100 * span, diffScale: 1e-3 * span },
       { name: 'flux_offset', value: s.offset, min: centre - 50 * span, max: centre + 50 * span, diffScale: 1e-3 * span },
       { name: 'cs_over_cr', value: csFixed, min: 0, max: 100, vary: fitCs, diffScale: 1e-3 },
     ];
     const w = bias.map((_, i) => 1 / sigmaOf(i));
     const residual = (p: Readonly<Record<string, number>>) => {
-      const { f } = modelAndGradient(bias, p, model, false);
+      const { f } = tuningModelWithGradient(bias, p, model, false);
       const r = new Float64Array(n);
       for (let i = 0; i < n; i++) r[i] = (fr[i] - f[i]) * w[i];
       return r;
     };
     const jacobian: JacobianFunction = (p, names) => {
-      const { grad } = modelAndGradient(bias, p, model, true);
+      const { grad } = tuningModelWithGradient(bias, p, model, true);
       const g = grad as Record<string, Float64Array>;
       const rows: number[][] = [];
       for (let i = 0; i < n; i++) rows.push(names.map((nm) => -g[nm][i] * w[i]));
@@ -476,7 +478,7 @@ export function fitTuningCurve(points: readonly TuningPoint[], options: TuningFi
   };
 
   const nStarts = Math.max(1, Math.floor(options.starts ?? 6));
-  // keep the best start per (rounded) period so the refined set is not six copies of one guess
+  // keep the best start per (rounded) period and d so the refined set is not six copies of one guess
   const chosen: Start[] = [];
   for (const s of starts) {
     if (chosen.length >= nStarts) break;
@@ -506,7 +508,9 @@ export function fitTuningCurve(points: readonly TuningPoint[], options: TuningFi
   }
   const polished = valuesOf(best);
   polished.offset = offsetNearestCentre(polished.offset, polished.period, centre);
-  let fit = runFit(polished, true);
+  // a symmetric fit is reached by continuation: the starts refine with d free (with d = 0 from the
+  // outset a slightly wrong period drops points onto the lobe-edge cusp and LM stalls), then d := 0
+  let fit = runFit(symmetric ? { ...polished, d: 0 } : polished, true, symmetric);
   if (!(fit.residuals.length === n)) fit = best;
   if (!symmetric && fit.params.asymmetry.value < 1e-6) {
     // f depends on d², so ∂f/∂d = 0 at d = 0 and the covariance is singular there. Errors of the
@@ -531,7 +535,7 @@ export function fitTuningCurve(points: readonly TuningPoint[], options: TuningFi
   const line = { f0Hz: f0, gamma0, asymmetry: d, csOverCr: cs, period: periodSign * Pabs, offset };
 
   // per-point results and the outlier rule
-  const { f: fm } = modelAndGradient(bias, fit.params ? Object.fromEntries(Object.entries(fit.params).map(([k, v]) => [k, v.value])) : {}, model, false);
+  const { f: fm } = tuningModelWithGradient(bias, fit.params ? Object.fromEntries(Object.entries(fit.params).map(([k, v]) => [k, v.value])) : {}, model, false);
   const wres = fit.residuals;
   const sRob = Math.max(robustSigma(wres), 1e-300);
   const outliers: number[] = [];

@@ -93,7 +93,7 @@ interface PhaseStart {
   score: number;
 }
 
-function phaseModel(bias: ArrayLike<number>, p: Readonly<Record<string, number>>, omega: number, wantGrad: boolean) {
+export function phaseModelWithGradient(bias: ArrayLike<number>, p: Readonly<Record<string, number>>, omega: number, wantGrad: boolean) {
   const n = bias.length;
   const th = new Float64Array(n);
   const grad = wantGrad
@@ -185,7 +185,7 @@ export function fitPhaseVsFlux(points: readonly PhasePoint[], options: PhaseFitO
   const noise0 = Math.max(noiseFromSecondDifferences(unwrappedSorted), 1e-6);
   const est = dominantPeriod(bs, smooth);
   const periods = est && est.cycles >= 1.5 ? [est.period, 2 * est.period, est.period / 2] : [0.5, 1, 2, 4, 8].map((m) => m * span);
-  const ds = symmetric ? [0] : [0, 0.03, 0.1, 0.2, 0.35, 0.6];
+  const ds = [0, 0.03, 0.1, 0.2, 0.35, 0.6]; // also for a symmetric fit: see fitTuning.ts (continuation)
   const starts: PhaseStart[] = [];
   for (const P of periods) {
     if (!(P > (4 * span) / Math.max(n - 1, 1))) continue;
@@ -213,20 +213,20 @@ export function fitPhaseVsFlux(points: readonly PhasePoint[], options: PhaseFitO
   const runFit = (s: PhaseStart, covariance: boolean, holdD = false): FitResult => {
     const spec: ParameterSpec[] = [
       { name: 'tau_eff0_s', value: s.tau, min: 0, max: 1e3 * tauScale, diffScale: 1e-3 * tauScale },
-      { name: 'asymmetry', value: symmetric ? 0 : s.d, min: 0, max: 1, vary: !symmetric && !holdD, diffScale: 1e-3 },
+      { name: 'asymmetry', value: holdD ? 0 : s.d, min: 0, max: 1, vary: !holdD, diffScale: 1e-3 },
       { name: 'flux_period', value: s.period, min: (2 * span) / Math.max(n - 1, 1), max: 100 * span, diffScale: 1e-3 * span },
       { name: 'flux_offset', value: s.offset, min: centre - 50 * span, max: centre + 50 * span, diffScale: 1e-3 * span },
       { name: 'theta0_rad', value: s.theta0, min: -1e4, max: 1e4, diffScale: 1e-3 },
     ];
     const w = bias.map((_, i) => 1 / sigmaOf(i));
     const residual = (p: Readonly<Record<string, number>>) => {
-      const { th } = phaseModel(bias, p, omega, false);
+      const { th } = phaseModelWithGradient(bias, p, omega, false);
       const r = new Float64Array(n);
       for (let i = 0; i < n; i++) r[i] = wrapToPi(ph[i] - th[i]) * w[i];
       return r;
     };
     const jacobian: JacobianFunction = (p, names) => {
-      const g = phaseModel(bias, p, omega, true).grad as Record<string, Float64Array>;
+      const g = phaseModelWithGradient(bias, p, omega, true).grad as Record<string, Float64Array>;
       const rows: number[][] = [];
       for (let i = 0; i < n; i++) rows.push(names.map((nm) => -g[nm][i] * w[i]));
       return rows;
@@ -256,7 +256,7 @@ export function fitPhaseVsFlux(points: readonly PhasePoint[], options: PhaseFitO
   if (!nGiven) sigmaAll = Math.max(robustSigma(best.residuals.map((r) => r * sigmaAll)), 1e-9);
   const pol = valuesOf(best);
   pol.offset = offsetNearestCentre(pol.offset, pol.period, centre);
-  let fit = runFit(pol, true);
+  let fit = runFit(symmetric ? { ...pol, d: 0 } : pol, true, symmetric);
   if (fit.residuals.length !== n) fit = best;
   if (!symmetric && fit.params.asymmetry.value < 1e-6) {
     const held = runFit({ ...valuesOf(fit), d: 0 }, true, true);
@@ -272,7 +272,7 @@ export function fitPhaseVsFlux(points: readonly PhasePoint[], options: PhaseFitO
   const v = Object.fromEntries(Object.entries(fit.params).map(([k, q]) => [k, q.value]));
   const theta0 = wrapToPi(v.theta0_rad);
   const line = { tauEff0S: v.tau_eff0_s, asymmetry: v.asymmetry, period: periodSign * v.flux_period, offset: v.flux_offset, theta0Rad: theta0, probeFrequencyHz: fp };
-  const { th } = phaseModel(bias, v, omega, false);
+  const { th } = phaseModelWithGradient(bias, v, omega, false);
   const wres = fit.residuals;
   const sRob = Math.max(robustSigma(wres), 1e-300);
   const outliers: number[] = [];
