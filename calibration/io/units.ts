@@ -82,7 +82,10 @@ export function parseUnitHeader(header: string): { quantity: string; unit: strin
 /** Factor that converts a value in `from` to `to` (both canonical), via mathjs. */
 export function conversionFactor(from: string, to: string): number {
   if (from === to) return 1;
-  return mathUnit(1, from).toNumber(to);
+  const f = mathUnit(1, from).toNumber(to);
+  // Prefix ratios are exact powers of ten; mathjs may return 1000.0000000000001 for mA -> uA.
+  const p = Math.pow(10, Math.round(Math.log10(f)));
+  return Math.abs(f / p - 1) < 1e-12 ? p : f;
 }
 
 export function toHzFactor(unit: string): number {
