@@ -27,6 +27,10 @@
  *   choice: the robust alternative (scaled Jacobian, robust cost) is what curve_fit would give.
  *   Parameters on a bound stay in the matrix (as curve_fit does) but their stderr is null.
  *
+ * - With a numeric Jacobian the columns are re-derived at the solution with a 16× smaller step; a
+ *   column that changes by > 5% (a step far off the parameter's scale) turns success to false,
+ *   since such a Jacobian makes the iteration stall where ftol/xtol would call it converged.
+ *
  * Failures never throw: invalid input, non-finite start, under-determined problems and
  * non-convergence give success=false with a message; values are the last finite point.
  * All parameters fixed: the statistics are evaluated at the given values, success=true.
@@ -56,6 +60,8 @@ export const LEAST_SQUARES_DEFAULTS = {
 /** Pivot tolerance of the unit-diagonal JᵀJ when inverting for the covariance (≈ correlation 1 − 5e-14). */
 const COVARIANCE_PIVOT_TOL = 1e-13;
 const LAMBDA_INITIAL = 1e-3;
+/** Relative change of a finite-difference column, step h vs h/16, above which the Jacobian is called unreliable. */
+const JACOBIAN_CONSISTENCY = 0.05;
 const LAMBDA_MAX = 1e30;
 
 const LOSSES: readonly Loss[] = ['linear', 'soft_l1', 'huber', 'cauchy'];
@@ -284,10 +290,10 @@ export function leastSquares(
   const n = ndata;
 
   /** Plain Jacobian at x, column-major (column j = ∂r/∂x_j, length n); a string says why it failed. */
-  const computeJacobian = (xv: Float64Array, r: Float64Array): Float64Array | string => {
+  const computeJacobian = (xv: Float64Array, r: Float64Array, stepFactor = 1, numericOnly = false): Float64Array | string => {
     njev++;
     const jac = new Float64Array(n * k);
-    if (jacobian) {
+    if (jacobian && !numericOnly) {
       let rows: number[][];
       try {
         rows = jacobian(record(xv), varyingNames);
@@ -309,7 +315,7 @@ export function leastSquares(
     const xp = Float64Array.from(xv);
     for (let j = 0; j < k; j++) {
       const xj = xv[j];
-      let h = diffStep * Math.max(Math.abs(xj), floor[j]);
+      let h = stepFactor * diffStep * Math.max(Math.abs(xj), floor[j]);
       if (xj + h > hi[j]) h = xj - h >= lo[j] ? -h : hi[j] - xj >= xj - lo[j] ? hi[j] - xj : lo[j] - xj;
       let done = false;
       for (let attempt = 0; attempt < 2 && !done; attempt++) {
@@ -388,6 +394,19 @@ export function leastSquares(
     }
   };
 
+  /** MINPACK's gradient measure over the free parameters: max_j |J̃_jᵀ r̃| / (‖J̃_j‖ ‖r̃‖). */
+  const gradientCosine = (): { gnorm: number; rnorm: number } => {
+    const rnorm = Math.sqrt(sumSquaresWeighted(r, sqrtw));
+    let gnorm = 0;
+    if (rnorm > 0) {
+      for (let j = 0; j < k; j++) {
+        if (active[j] || !(A[j * k + j] > 0)) continue;
+        gnorm = Math.max(gnorm, Math.abs(g[j]) / (Math.sqrt(A[j * k + j]) * rnorm));
+      }
+    }
+    return { gnorm, rnorm };
+  };
+
   const scaledNorms = (s: Float64Array): { step: number; point: number } => {
     let ns = 0;
     let nx = 0;
@@ -450,14 +469,7 @@ export function leastSquares(
       buildNormalEquations(jac);
       markActive();
       // gtol: largest cosine between the (reweighted) residual vector and a free Jacobian column (MINPACK's test).
-      const rnorm = Math.sqrt(sumSquaresWeighted(r, sqrtw));
-      let gnorm = 0;
-      if (rnorm > 0) {
-        for (let j = 0; j < k; j++) {
-          if (active[j] || !(A[j * k + j] > 0)) continue;
-          gnorm = Math.max(gnorm, Math.abs(g[j]) / (Math.sqrt(A[j * k + j]) * rnorm));
-        }
-      }
+      const { gnorm, rnorm } = gradientCosine();
       if (rnorm === 0) {
         converged = true;
         message = 'converged: residuals are exactly zero';
@@ -558,6 +570,40 @@ export function leastSquares(
 
   if (stopFailure) {
     return finish({ x, r, converged: false, message: `stopped: ${stopFailure}`, iterations, jac: null });
+  }
+  // A forward difference with a step far off the parameter's scale (say 1.5e-8 s for a cable delay
+  // starting at 0) gives a wrong Jacobian; the iteration then stalls and the ftol/xtol tests would
+  // call that converged. Check it: recompute the columns with a 16× smaller step and compare.
+  if (converged && !jacobian && options.checkJacobian !== false && cost > 0) {
+    if (jac === null) {
+      const jc = computeJacobian(x, r);
+      if (typeof jc === 'string') return finish({ x, r, converged: false, message: `stopped: ${jc}`, iterations, jac: null });
+      jac = jc;
+    }
+    const fine = computeJacobian(x, r, 1 / 16, true);
+    const bad: string[] = [];
+    if (typeof fine !== 'string') {
+      for (let j = 0; j < k; j++) {
+        let d2 = 0;
+        let c2 = 0;
+        let f2 = 0;
+        for (let i = 0; i < n; i++) {
+          const a = jac[j * n + i];
+          const b = fine[j * n + i];
+          d2 += (a - b) * (a - b);
+          c2 += a * a;
+          f2 += b * b;
+        }
+        if (Math.sqrt(d2) > JACOBIAN_CONSISTENCY * Math.sqrt(Math.max(c2, f2))) bad.push(varyingNames[j]);
+      }
+    }
+    if (bad.length > 0) {
+      converged = false;
+      message =
+        `not converged: the iteration stopped (${message.replace('converged: ', '')}) but the finite-difference Jacobian ` +
+        `is unreliable for ${bad.join(', ')} (columns change with the step): give ${bad.length > 1 ? 'them' : 'it'} a ` +
+        'diffScale near the expected size, or supply an analytic Jacobian';
+    }
   }
   return finish({ x, r, converged, message, iterations, jac });
 

@@ -48,6 +48,12 @@ export interface LeastSquaresOptions {
   diffStep?: number;
   /** false skips the covariance (and stderr, correlation) at the solution, e.g. for the losing starts of a multi-start fit. Default true. */
   computeCovariance?: boolean;
+  /**
+   * With a numeric Jacobian, re-derive it at the solution with a 16× smaller step and report
+   * success=false when a column changes by more than 5% (a step far off the parameter's scale).
+   * Costs nvarys evaluations. Default true.
+   */
+  checkJacobian?: boolean;
 }
 
 /**

@@ -386,6 +386,39 @@ describe('failure cases return success=false with a message, never throw, never 
     expect(res.params.unused.value).toBe(3);
   });
 
+  it('a finite-difference step far off a parameter scale is caught, and diffScale fixes it', () => {
+    // The notch data in Hz with an extra cable delay (seconds) starting at 0: the default step floor
+    // (diffStep·1 s ≈ 15 ns, i.e. hundreds of radians at 6 GHz) gives a meaningless column.
+    const pr = problem('notch_complex');
+    const f = pr.x!.map((v) => v * 1e9);
+    const [yRe, yIm, sg] = [pr.yRe!, pr.yIm!, pr.sigma![0]];
+    const n = f.length;
+    const residual: ResidualFunction = (p) => {
+      const out = new Float64Array(2 * n);
+      const q = p.Q / p.Qc;
+      for (let i = 0; i < n; i++) {
+        const ph = p.theta - 2 * Math.PI * f[i] * p.delay;
+        const [c, sn] = [p.a * Math.cos(ph), p.a * Math.sin(ph)];
+        const d = 2 * p.Q * (f[i] / p.fr - 1);
+        const [sRe, sIm] = [1 - q / (1 + d * d), (q * d) / (1 + d * d)];
+        out[i] = (yRe[i] - (c * sRe - sn * sIm)) / sg;
+        out[n + i] = (yIm[i] - (c * sIm + sn * sRe)) / sg;
+      }
+      return out;
+    };
+    const base = pr.params.map((p) => (p.name === 'fr' ? { ...p, value: p.value * 1e9 } : p));
+    const wrong = leastSquares(residual, [...base, { name: 'delay', value: 0 }]);
+    expect(wrong.success).toBe(false);
+    expect(wrong.message).toMatch(/finite-difference Jacobian is unreliable for delay/);
+    noNaN(wrong);
+    const right = leastSquares(residual, [...base, { name: 'delay', value: 0, diffScale: 1e-9 }]);
+    expect(right.success).toBe(true);
+    // one more free parameter than scipy's fit: chi-square can only drop, and only a little (no delay in the data)
+    expect(right.chisqr).toBeLessThanOrEqual(pr.reference.chisqr * (1 + 1e-9));
+    expect(right.chisqr).toBeGreaterThan(pr.reference.chisqr * 0.99);
+    expectRel(right.params.fr.value, pr.reference.values.fr * 1e9, 1e-8, 0, 'fr in Hz');
+  });
+
   it('a start outside the bounds is moved onto the bound', () => {
     const ub = problem('exp_decay_upper_bound');
     const { residual: r0 } = residualsOf(ub);
