@@ -6,7 +6,7 @@ import express, { type RequestHandler, Router } from 'express';
 /**
  * One route per exported HTML file. Expo Router's static export writes e.g. dist/index.html,
  * dist/sign-in.html, dist/(app)/devices/[id].html: groups "(x)" do not appear in the URL,
- * "[param]" matches one segment, "[...rest]" the remainder, "index" is the folder itself.
+ * "[param]" matches one segment, "[...rest]" one or more, "index" is the folder itself.
  */
 interface HtmlRoute {
   file: string;
@@ -55,6 +55,8 @@ export function matchHtmlRoute(routes: HtmlRoute[], urlPath: string): string | u
     for (; i < r.segments.length; i++) {
       const seg = r.segments[i];
       if (seg.startsWith('[...')) {
+        // A catch-all needs at least one segment to catch.
+        ok = i < segs.length;
         i = segs.length;
         break;
       }
