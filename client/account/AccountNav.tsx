@@ -1,8 +1,9 @@
 import React from 'react';
-import { Pressable, ScrollView, StyleSheet, View } from 'react-native';
-import { Link, usePathname } from 'expo-router';
+import { StyleSheet, View } from 'react-native';
+import { usePathname } from 'expo-router';
 import { useSession } from '../session/SessionProvider';
 import { colors, fonts, radius, space } from '../theme';
+import { PressableLink } from '../ui/PressableLink';
 import { Text } from '../ui/Text';
 import { useIsWide } from '../ui/useLayout';
 
@@ -26,17 +27,17 @@ export function AccountNav() {
   const list = items.map((s) => {
     const active = pathname === s.href;
     return (
-      <Link key={s.key} href={s.href} asChild>
-        <Pressable
-          testID={`account-nav-${s.key}`}
-          aria-current={active ? 'page' : undefined}
-          style={[wide ? styles.item : styles.chip, active && (wide ? styles.itemOn : styles.chipOn)]}
-        >
+      <PressableLink
+        key={s.key}
+        href={s.href}
+        testID={`account-nav-${s.key}`}
+        aria-current={active ? 'page' : undefined}
+        style={[wide ? styles.item : styles.chip, active && (wide ? styles.itemOn : styles.chipOn)]}
+      >
           <Text style={[styles.text, active && (wide ? { color: colors.ink, fontFamily: fonts.sansSemiBold } : { color: colors.accentInk })]}>
             {s.label}
           </Text>
-        </Pressable>
-      </Link>
+      </PressableLink>
     );
   });
   if (wide) {
@@ -50,17 +51,9 @@ export function AccountNav() {
     );
   }
   return (
-    <ScrollView
-      horizontal
-      showsHorizontalScrollIndicator={false}
-      style={styles.strip}
-      contentContainerStyle={{ gap: space.xs, paddingHorizontal: space.lg, paddingVertical: space.sm }}
-      testID="account-nav"
-      role="navigation"
-      aria-label="Account sections"
-    >
+    <View style={styles.strip} testID="account-nav" role="navigation" aria-label="Account sections">
       {list}
-    </ScrollView>
+    </View>
   );
 }
 
@@ -68,7 +61,16 @@ const styles = StyleSheet.create({
   column: { width: 200, paddingTop: space.xl, paddingHorizontal: space.sm, borderRightWidth: 1, borderRightColor: colors.rule, gap: 2 },
   item: { paddingHorizontal: space.md, height: 36, justifyContent: 'center', borderRadius: radius.sm },
   itemOn: { backgroundColor: colors.accentWash },
-  strip: { flexGrow: 0, borderBottomWidth: 1, borderBottomColor: colors.rule, backgroundColor: colors.sheet },
+  strip: {
+    flexDirection: 'row',
+    flexWrap: 'wrap',
+    gap: space.xs,
+    paddingHorizontal: space.lg,
+    paddingVertical: space.sm,
+    borderBottomWidth: 1,
+    borderBottomColor: colors.rule,
+    backgroundColor: colors.sheet,
+  },
   chip: { paddingHorizontal: space.md, height: 32, justifyContent: 'center', borderRadius: radius.sm, borderWidth: 1, borderColor: colors.ruleStrong },
   chipOn: { backgroundColor: colors.ink, borderColor: colors.ink },
   text: { fontFamily: fonts.sansMedium, fontSize: 14, color: colors.inkSoft },

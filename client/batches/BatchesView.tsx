@@ -1,6 +1,5 @@
 import React, { useState } from 'react';
-import { Pressable, StyleSheet, View } from 'react-native';
-import { Link } from 'expo-router';
+import { StyleSheet, View } from 'react-native';
 import { errorMessage } from '../api/http';
 import type { Batch } from '../api/types';
 import { formatDate } from '../format/units';
@@ -9,6 +8,7 @@ import { canEditInventory, useSession } from '../session/SessionProvider';
 import { colors, fonts, radius, space } from '../theme';
 import { Button } from '../ui/Button';
 import { Card } from '../ui/Card';
+import { PressableLink } from '../ui/PressableLink';
 import { EmptyState, ErrorState, LoadingState, Notice } from '../ui/States';
 import { Text } from '../ui/Text';
 import { TextField } from '../ui/TextField';
@@ -49,11 +49,9 @@ function NewBatchForm({ onDone }: { onDone: () => void }) {
 
 function DevicesLink({ b }: { b: Batch }) {
   return (
-    <Link href={{ pathname: '/devices', params: { batch: b.code } }} asChild>
-      <Pressable aria-label={`Devices of batch ${b.code}`} testID={`batch-devices-${b.code}`}>
-        <Text style={{ color: colors.accent, fontFamily: fonts.monoMedium }}>{b.deviceCount}</Text>
-      </Pressable>
-    </Link>
+    <PressableLink href={{ pathname: '/devices', params: { batch: b.code } }} aria-label={`Devices of batch ${b.code}`} testID={`batch-devices-${b.code}`}>
+      <Text style={{ color: colors.accent, fontFamily: fonts.monoMedium, textDecorationLine: 'underline' }}>{b.deviceCount}</Text>
+    </PressableLink>
   );
 }
 

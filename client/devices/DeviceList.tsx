@@ -1,6 +1,5 @@
 import React, { useState } from 'react';
-import { Pressable, StyleSheet, View } from 'react-native';
-import { Link } from 'expo-router';
+import { StyleSheet, View } from 'react-native';
 import type { Device } from '../api/types';
 import { formatFrequency } from '../format/units';
 import { useBatches } from '../queries/batches';
@@ -9,6 +8,7 @@ import { canEditInventory, useSession } from '../session/SessionProvider';
 import { colors, fonts, radius, space } from '../theme';
 import { CalibrationBadge } from '../ui/Badge';
 import { Button } from '../ui/Button';
+import { PressableLink } from '../ui/PressableLink';
 import { Choice } from '../ui/Choice';
 import { EmptyState, ErrorState, LoadingState } from '../ui/States';
 import { Text } from '../ui/Text';
@@ -23,33 +23,32 @@ export const GEOMETRY_LABELS: Record<Device['geometry'], string> = {
 
 function DeviceRow({ device, selected }: { device: Device; selected: boolean }) {
   return (
-    <Link href={`/devices/${device.id}`} asChild>
-      <Pressable
-        testID={`device-row-${device.name}`}
-        aria-label={`Device ${device.name}`}
-        aria-current={selected ? 'page' : undefined}
-        style={({ hovered }: { pressed: boolean; hovered?: boolean }) => [
-          styles.row,
-          hovered && { backgroundColor: '#F0ECE2' },
-          selected && styles.rowSelected,
-        ]}
-      >
-        <View style={{ flex: 1, minWidth: 0, gap: 2 }}>
-          <View style={{ flexDirection: 'row', alignItems: 'baseline', gap: space.sm, flexWrap: 'wrap' }}>
-            <Text style={styles.name}>{device.name}</Text>
-            <Text variant="monoSmall">{device.batchCode}</Text>
-            {device.chipPosition ? <Text variant="monoSmall">· {device.chipPosition}</Text> : null}
-          </View>
-          <Text variant="small" numberOfLines={1}>
-            {GEOMETRY_LABELS[device.geometry] ?? device.geometry}
-          </Text>
+    <PressableLink
+      href={`/devices/${device.id}`}
+      testID={`device-row-${device.name}`}
+      aria-label={`Device ${device.name}`}
+      aria-current={selected ? 'page' : undefined}
+      style={({ hovered }) => [
+        styles.row,
+        hovered && { backgroundColor: '#F0ECE2' },
+        selected && styles.rowSelected,
+      ]}
+    >
+      <View style={{ flex: 1, minWidth: 0, gap: 2 }}>
+        <View style={{ flexDirection: 'row', alignItems: 'baseline', gap: space.sm, flexWrap: 'wrap' }}>
+          <Text style={styles.name}>{device.name}</Text>
+          <Text variant="monoSmall">{device.batchCode}</Text>
+          {device.chipPosition ? <Text variant="monoSmall">· {device.chipPosition}</Text> : null}
         </View>
-        <View style={{ alignItems: 'flex-end', gap: 4 }}>
-          <Text variant="mono">{formatFrequency(device.designFrequencyHz)}</Text>
-          <CalibrationBadge status={device.calibrationStatus} />
-        </View>
-      </Pressable>
-    </Link>
+        <Text variant="small" numberOfLines={1}>
+          {GEOMETRY_LABELS[device.geometry] ?? device.geometry}
+        </Text>
+      </View>
+      <View style={{ alignItems: 'flex-end', gap: 4 }}>
+        <Text variant="mono">{formatFrequency(device.designFrequencyHz)}</Text>
+        <CalibrationBadge status={device.calibrationStatus} />
+      </View>
+    </PressableLink>
   );
 }
 

@@ -1,12 +1,12 @@
 import React from 'react';
-import { Pressable, StyleSheet, View } from 'react-native';
-import { Link } from 'expo-router';
+import { StyleSheet, View } from 'react-native';
 import type { CalibrationStatus, Device } from '../api/types';
 import { formatFrequency } from '../format/units';
 import { useDevices } from '../queries/devices';
 import { colors, fonts, radius, space } from '../theme';
 import { CalibrationBadge } from '../ui/Badge';
 import { Card } from '../ui/Card';
+import { PressableLink } from '../ui/PressableLink';
 import { EmptyState, ErrorState, LoadingState, Notice } from '../ui/States';
 import { Text } from '../ui/Text';
 
@@ -18,15 +18,13 @@ const GROUPS: { status: CalibrationStatus; title: string; note: string }[] = [
 
 function DeviceLine({ d }: { d: Device }) {
   return (
-    <Link href={`/devices/${d.id}`} asChild>
-      <Pressable style={styles.line} testID={`plan-device-${d.name}`} aria-label={`Device ${d.name}`}>
-        <Text style={styles.name}>{d.name}</Text>
-        <Text variant="monoSmall">{d.batchCode}</Text>
-        <View style={{ flex: 1 }} />
-        <Text variant="mono">{formatFrequency(d.designFrequencyHz)}</Text>
-        <CalibrationBadge status={d.calibrationStatus} />
-      </Pressable>
-    </Link>
+    <PressableLink href={`/devices/${d.id}`} style={styles.line} testID={`plan-device-${d.name}`} aria-label={`Device ${d.name}`}>
+      <Text style={styles.name}>{d.name}</Text>
+      <Text variant="monoSmall">{d.batchCode}</Text>
+      <View style={{ flex: 1 }} />
+      <Text variant="mono">{formatFrequency(d.designFrequencyHz)}</Text>
+      <CalibrationBadge status={d.calibrationStatus} />
+    </PressableLink>
   );
 }
 

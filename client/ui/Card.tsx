@@ -2,6 +2,7 @@ import React from 'react';
 import { StyleSheet, View, type ViewProps } from 'react-native';
 import { colors, radius, space } from '../theme';
 import { Text } from './Text';
+import { useIsWide } from './useLayout';
 
 export function Card({ title, aside, children, style, ...rest }: ViewProps & { title?: string; aside?: React.ReactNode }) {
   return (
@@ -21,9 +22,11 @@ export function Card({ title, aside, children, style, ...rest }: ViewProps & { t
 
 /** A label/value line inside a card; the value is mono when it is a quantity. */
 export function Field({ label, value, mono, testID }: { label: string; value: React.ReactNode; mono?: boolean; testID?: string }) {
+  // Side by side on wide screens; stacked on phones so long values (e-mail addresses) keep their line.
+  const wide = useIsWide();
   return (
-    <View style={styles.field} testID={testID}>
-      <Text variant="small" style={styles.fieldLabel}>
+    <View style={wide ? styles.field : styles.fieldStacked} testID={testID}>
+      <Text variant="small" style={wide ? styles.fieldLabel : undefined}>
         {label}
       </Text>
       {typeof value === 'string' || typeof value === 'number' ? (
@@ -52,6 +55,7 @@ const styles = StyleSheet.create({
   },
   head: { flexDirection: 'row', alignItems: 'center', justifyContent: 'space-between', gap: space.sm },
   field: { flexDirection: 'row', alignItems: 'baseline', gap: space.md, flexWrap: 'wrap' },
+  fieldStacked: { gap: 2 },
   fieldLabel: { width: 150, flexShrink: 0 },
   fieldValue: { flexShrink: 1, flexGrow: 1 },
   fieldValueBox: { flexShrink: 1, flexGrow: 1 },

@@ -1,6 +1,7 @@
 import React from 'react';
-import { Pressable, StyleSheet, View } from 'react-native';
-import { Link, usePathname } from 'expo-router';
+import { StyleSheet, View } from 'react-native';
+import { usePathname } from 'expo-router';
+import { PressableLink } from './PressableLink';
 import { useSafeAreaInsets } from 'react-native-safe-area-context';
 import { useSession } from '../session/SessionProvider';
 import { colors, fonts, space } from '../theme';
@@ -98,20 +99,20 @@ function Rail() {
         {NAV_ITEMS.map((item) => {
           const active = isActive(pathname, item.href);
           return (
-            <Link key={item.key} href={item.href} asChild>
-              <Pressable
-                testID={`nav-${item.key}`}
-                aria-current={active ? 'page' : undefined}
-                style={({ hovered }: { pressed: boolean; hovered?: boolean }) => [
-                  styles.railItem,
-                  hovered && !active && { backgroundColor: '#ECE8DE' },
-                  active && styles.railItemActive,
-                ]}
-              >
-                <Glyph kind={item.key} active={active} />
-                <Text style={[styles.railLabel, active && { color: colors.ink, fontFamily: fonts.sansSemiBold }]}>{item.label}</Text>
-              </Pressable>
-            </Link>
+            <PressableLink
+              key={item.key}
+              href={item.href}
+              testID={`nav-${item.key}`}
+              aria-current={active ? 'page' : undefined}
+              style={({ hovered }) => [
+                styles.railItem,
+                hovered && !active && { backgroundColor: '#ECE8DE' },
+                active && styles.railItemActive,
+              ]}
+            >
+              <Glyph kind={item.key} active={active} />
+              <Text style={[styles.railLabel, active && { color: colors.ink, fontFamily: fonts.sansSemiBold }]}>{item.label}</Text>
+            </PressableLink>
           );
         })}
       </View>
@@ -150,13 +151,11 @@ function TabBar() {
       {NAV_ITEMS.map((item) => {
         const active = isActive(pathname, item.href);
         return (
-          <Link key={item.key} href={item.href} asChild>
-            <Pressable testID={`nav-${item.key}`} aria-current={active ? 'page' : undefined} style={styles.tab}>
-              <View style={[styles.tabIndicator, active && { backgroundColor: colors.accent }]} />
-              <Glyph kind={item.key} active={active} />
-              <Text style={[styles.tabLabel, active && { color: colors.ink, fontFamily: fonts.sansSemiBold }]}>{item.label}</Text>
-            </Pressable>
-          </Link>
+          <PressableLink key={item.key} href={item.href} testID={`nav-${item.key}`} aria-current={active ? 'page' : undefined} style={styles.tab}>
+            <View style={[styles.tabIndicator, active && { backgroundColor: colors.accent }]} />
+            <Glyph kind={item.key} active={active} />
+            <Text style={[styles.tabLabel, active && { color: colors.ink, fontFamily: fonts.sansSemiBold }]}>{item.label}</Text>
+          </PressableLink>
         );
       })}
     </View>
