@@ -216,10 +216,10 @@ export function formatRank(r: RankResult): string {
 }
 
 function run(argv: readonly string[], kind: 'plan' | 'rank'): CliOutput {
-  let json = false;
+  // Seen before parsing so that even a parse error is reported as JSON when asked.
+  const json = argv.includes('--json');
   try {
     const opts = parseArgs(argv);
-    json = opts.get('json') === true;
     if (opts.get('help') === true) return { stdout: PLAN_USAGE + '\n', exitCode: 0 };
     const path = opts.get('calibration');
     if (typeof path !== 'string') throw new ArgError('--calibration', '--calibration FIT.json is required');
@@ -237,7 +237,7 @@ function run(argv: readonly string[], kind: 'plan' | 'rank'): CliOutput {
     return { stdout: json ? JSON.stringify(r) + '\n' : formatRank(r), exitCode: 0 };
   } catch (e) {
     if (e instanceof ArgError) {
-      const msg = `${kind}: ${e.message}`;
+      const msg = `${kind}: ${e.message}${e.message.includes(e.option) ? '' : ` (${e.option})`}`;
       return { stdout: json ? JSON.stringify({ error: { code: 'bad_arguments', option: e.option, message: msg } }) + '\n' : `${msg}\n\n${PLAN_USAGE}\n`, exitCode: 2 };
     }
     if (e instanceof PlanError) {
