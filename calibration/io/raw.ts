@@ -168,6 +168,9 @@ export function readRaw(head: TableHead, log: IssueLog, opts: { geometry?: Geome
   log.throwIfErrors();
 
   const fScale = hzFactorOf(head, freqCol, medianAbs(freq, n), log);
+  // Frequencies in messages are shown in the column's own unit, as the user sees them in the file.
+  const fUnit = freqCol.unit?.kind === 'frequency' ? freqCol.unit.unit : 'Hz';
+  const showF = (hz: number): string => formatValue(hz / fScale, fUnit);
   // Convert to real/imaginary in place (definitions: |S| = 10^(dB/20); S = |S|·e^{iφ}).
   if (fScale !== 1) for (let i = 0; i < n; i++) freq[i] *= fScale;
   if (format === 'db' || format === 'lin') {
@@ -216,8 +219,8 @@ export function readRaw(head: TableHead, log: IssueLog, opts: { geometry?: Geome
         rowOf[bad],
         freqCol.header,
         same
-          ? `frequency ${formatValue(freq[bad], 'Hz')} repeats row ${rowOf[bad - 1]} in the trace at bias ${formatValue(b, biasUnit)} (rows ${rows[0]}–${rows[1]})`
-          : `frequency ${formatValue(freq[bad], 'Hz')} breaks the order of the trace at bias ${formatValue(b, biasUnit)} (rows ${rows[0]}–${rows[1]}, previous row ${rowOf[bad - 1]}: ${formatValue(freq[bad - 1], 'Hz')}); sort each trace by frequency`,
+          ? `frequency ${showF(freq[bad])} repeats row ${rowOf[bad - 1]} in the trace at bias ${formatValue(b, biasUnit)} (rows ${rows[0]}–${rows[1]})`
+          : `frequency ${showF(freq[bad])} breaks the order of the trace at bias ${formatValue(b, biasUnit)} (rows ${rows[0]}–${rows[1]}, previous row ${rowOf[bad - 1]}: ${showF(freq[bad - 1])}); sort each trace by frequency`,
       );
       continue;
     }

@@ -50,7 +50,7 @@ interface OneFile {
   ports: number;
 }
 
-function readOption(tokens: string[], row: number, log: IssueLog): { scale: number; format: Format } {
+function readOption(tokens: string[], row: number, log: IssueLog): { scale: number; unit: string; format: Format } {
   let unit: string | null = null;
   let param: string | null = null;
   let format: Format | null = null;
@@ -81,13 +81,14 @@ function readOption(tokens: string[], row: number, log: IssueLog): { scale: numb
   }
   void r;
   if (param && param !== 'S') log.fatal(row, null, `option line: the file holds ${param}-parameters; only S-parameters are read`);
-  return { scale: toHzFactor(unit ?? 'GHz'), format: format ?? 'MA' };
+  return { scale: toHzFactor(unit ?? 'GHz'), unit: unit ?? 'GHz', format: format ?? 'MA' };
 }
 
 function readOneFile(name: string, raw: string, port: SParam | null, log: IssueLog, ports0: number | null): OneFile & { port: SParam } {
   const text = preflight(name, raw, log);
   let ports = ports0;
   if (ports !== null && ports > 2) log.fatal(null, null, `a ${ports}-port file; only 1- and 2-port Touchstone files (.s1p, .s2p) are read`);
+  const errorsBefore = log.errorCount;
   let capacity = 16;
   for (let i = text.indexOf('\n'); i !== -1; i = text.indexOf('\n', i + 1)) capacity++;
   const freq = new Float64Array(capacity);
@@ -95,7 +96,7 @@ function readOneFile(name: string, raw: string, port: SParam | null, log: IssueL
   const im = new Float64Array(capacity);
   let n = 0;
   let firstRow = 0, lastRow = 0;
-  let option: { scale: number; format: Format } | null = null;
+  let option: { scale: number; unit: string; format: Format } | null = null;
   let pair = -1;
   let chosen: SParam | null = port;
   let noiseFrom = 0;
@@ -164,7 +165,7 @@ function readOneFile(name: string, raw: string, port: SParam | null, log: IssueL
       continue;
     }
     if (f <= last) {
-      log.error(row, 'frequency', `frequency ${formatValue(f, 'Hz')} does not increase (previous data line: ${formatValue(last, 'Hz')}); Touchstone data must be in increasing frequency`);
+      log.error(row, 'frequency', `frequency ${tokens[0]} ${option.unit} does not increase (previous data line: ${formatValue(last / option.scale, option.unit)}); Touchstone data must be in increasing frequency`);
       continue;
     }
     last = f;
@@ -188,7 +189,8 @@ function readOneFile(name: string, raw: string, port: SParam | null, log: IssueL
   }
   if (!option) log.fatal(null, null, "no option line and no data; a Touchstone file starts with '# <frequency unit> <parameter> <format> R <n>'");
   if (n === 0 && log.errorCount === 0) log.fatal(null, null, 'the option line is not followed by any data lines');
-  if (n > 0 && n < MIN_TRACE_POINTS) log.error(firstRow, null, `rows ${firstRow}–${lastRow}: only ${n} frequency point${n === 1 ? '' : 's'}; at least ${MIN_TRACE_POINTS} are needed per trace`);
+  // Only when every line was read: a dropped bad line would otherwise be reported twice.
+  if (n > 0 && n < MIN_TRACE_POINTS && log.errorCount === errorsBefore) log.error(firstRow, null, `rows ${firstRow}–${lastRow}: only ${n} frequency point${n === 1 ? '' : 's'}; at least ${MIN_TRACE_POINTS} are needed per trace`);
   return { freqHz: freq.slice(0, n), re: re.slice(0, n), im: im.slice(0, n), rows: [firstRow, lastRow], ports: ports ?? 0, port: chosen ?? 'S11' };
 }
 

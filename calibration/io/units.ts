@@ -100,7 +100,7 @@ export function biasQuantityOfKind(kind: UnitKind | null): BiasQuantity {
   return kind === 'current' ? 'current' : kind === 'voltage' ? 'voltage' : 'unknown';
 }
 
-export const BIAS_UNITS_HINT = 'A, mA, uA, nA, V, mV, uV (or Phi0, a.u.)';
+export const BIAS_UNITS_HINT = 'A, mA, uA, nA, V, mV, uV, Phi0 or a.u.';
 
 /**
  * Read "6.1 GHz", "6.1GHz", "6100 MHz" or "6.1e9" (bare numbers count as Hz only when ≥ 1 MHz).
