@@ -253,7 +253,15 @@ function linearStart(
   return { f0, gamma0, d, period, offset, score };
 }
 
-/** Candidate starting points from the data (see file header and the report of the helper). */
+/**
+ * Candidate starting points from the data. Periods: the dominant period of the resampled curve
+ * (FFT, when ≥ 1.5 periods are visible; also ×2 and ÷2 against harmonic confusion), twice the
+ * distance between an interior maximum and minimum, the top curvature for several γ0, and
+ * multiples of the span when the curve is shorter than 1.5 periods. Offsets: the bias of the
+ * (running-median) maximum and the vertex of a parabola through the top. For each (period,
+ * offset, d on a grid) the approx model is linear in (1/f0, γ0/f0) and solved directly; the
+ * candidates are ranked by a soft-l1 score.
+ */
 function makeStarts(b: number[], y: number[], scoreScale: number): Start[] {
   const n = b.length;
   const span = b[n - 1] - b[0];
