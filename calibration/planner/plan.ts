@@ -524,16 +524,24 @@ export function planCavity(calibration: CalibrationJson, request: PlanRequest): 
   };
   const draws = req.uncertaintyDraws ?? DEFAULT_DRAWS;
   if (draws > 0) {
+    const squid: SquidLineParams = { ...dev.squid };
     res.uncertainty = sampleUncertainty(calibration, kind, values, req, draws, (v) => {
-      const d = deviceFromValues(kind, v);
-      const phiD = req.fluxPhi0 !== undefined ? req.fluxPhi0 : fluxFromBias(bias, d.period, d.offset);
-      const p = cavityPoint(d, phiD, q);
+      squid.f0Hz = v.f0_hz;
+      squid.gamma0 = v.gamma0;
+      squid.asymmetry = Math.abs(v.asymmetry);
+      squid.csOverCr = v.cs_over_cr ?? 0;
+      const phiD = req.fluxPhi0 !== undefined ? req.fluxPhi0 : fluxFromBias(bias, v.flux_period, v.flux_offset);
+      const p = cavityPoint({ kind, squid, period: v.flux_period, offset: v.flux_offset }, phiD, q);
       if (!(p.slopeRad > 0) || !(p.f > 0)) return null;
-      const s = { ...settings };
-      const th = cavityThreshold(p, s);
+      const th = cavityThreshold(p, settings);
       if (th === null) return null;
-      const e = cavityEvaluate(p, s, dp, th);
-      return { rate: dp < th ? e.pairRate : Infinity, threshold: th };
+      if (!(dp < th)) return { rate: Infinity, threshold: th };
+      if (settings.fixedPumpHz === null && settings.bandHalfRad === null) {
+        // closed form, as in cavityEvaluate
+        const nVac = vacuumOccupation(p.slopeRad * dp, p.kappa, settings.detuningRad);
+        return { rate: ((2 * settings.nth + 1) * p.kappaC * nVac) / 2, threshold: th };
+      }
+      return { rate: cavityEvaluate(p, settings, dp, th).pairRate, threshold: th };
     }, 'pump amplitude δΦ, Q_l, Q_c and the requested detuning (the pump is re-centred on each draw\'s resonance unless a pump frequency was given)');
     if (res.uncertainty === null) res.warnings.push({ code: 'no_covariance', message: 'the calibration has no usable covariance: no uncertainty estimate' });
   }
@@ -596,7 +604,8 @@ export function planLine(calibration: CalibrationJson, request: PlanRequest): Pl
   const betaL = screening(calibration, values, kind);
   const warnings = baseWarnings(phi, peakExcursion(settings.tones, dp), req, betaL, nth, null);
   if (Math.abs(centre - fp / 2) > 1e-9 * fp || hi > fp) warnings.push({ code: 'band_asymmetric', message: 'the detection band is not symmetric about f_p/2 inside (0, f_p): some partners fall outside it; predicted_pair_rate counts photons in band / 2, both_in_band_pair_rate counts pairs with both partners detected' });
-  const power = powerOutcome(req, dp, null);
+  // Tones at different frequencies carry additive power: the power-equivalent amplitude is sqrt(Σ A_k²).
+  const power = powerOutcome(req, settings.tones ? dp * Math.hypot(...settings.tones.map((t) => t.amplitudePhi0)) : dp, null);
   if (power.caution) warnings.push({ code: 'cold_stage_power', message: power.caution.text });
   const v = req.phaseVelocityMPerS ?? (typeof calibration.fixed?.phase_velocity_m_s === 'number' ? (calibration.fixed.phase_velocity_m_s as number) : null);
   const mirrorA = mirrorAmplitudeForRate(total, omegaP, SPEED_OF_LIGHT);
@@ -680,9 +689,10 @@ function sampleUncertainty(
   let rejected = 0;
   const n = names.length;
   const z = new Array<number>(n);
+  const v: Values = { ...values };
   for (let i = 0; i < draws; i++) {
     for (let j = 0; j < n; j++) z[j] = normal();
-    const v: Values = { ...values };
+    // one scratch object reused across draws (evaluate() must not keep it)
     for (let a = 0; a < n; a++) {
       let d = 0;
       const row = fac.factor[a];

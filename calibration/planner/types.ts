@@ -104,6 +104,7 @@ export interface PlanResult {
   /** Cavity: ¼·(d²f_r/dΦ²)·δΦ², the pump-induced shift of the mean resonance, Hz. */
   pump_frequency_shift_hz: number | null;
   detuning_hz: number | null;
+  /** Peak flux-pump amplitude δΦ, Φ0 (with a waveform: amplitude of its harmonic-1 tone). */
   pump_amplitude_phi0: number;
   threshold_amplitude_phi0: number | null;
   /** Cavity: δω/κ. */

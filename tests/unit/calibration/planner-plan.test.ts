@@ -232,6 +232,14 @@ describe('generator power', () => {
     const pGen = 1e-3 * 10 ** ((r.generator_power_dbm as number) / 10);
     expect(rel(diss[0].dissipated_w, pGen * 0.99)).toBeLessThan(1e-12);
   });
+  test('waveform: tone powers add (power-equivalent amplitude sqrt(Σ A_k²))', () => {
+    const chain = { pumpPeriod: 1e-3, attenuationDb: [30, 30] };
+    const r = planLine(lineCal, { ...lineReq, ...chain, waveform: [{ harmonic: 1, amplitudePhi0: 1 }, { harmonic: 3, amplitudePhi0: 0.5 }] });
+    const i1 = r.pump_amplitude_phi0 * 1e-3;
+    const i3 = 0.5 * i1;
+    const pChip = incidentPowerForShortCurrent(i1, 50) + incidentPowerForShortCurrent(i3, 50);
+    expect(rel(r.power_at_chip_dbm as number, 10 * Math.log10(pChip / 1e-3))).toBeLessThan(1e-12);
+  });
   test('threshold anchor: P = P_th·(δΦ/δΦ_th)²', () => {
     const r = planCavity(cal, { ...cav, thresholdPowerDbm: -30 });
     expect(r.generator_power_dbm as number).toBeCloseTo(-30 + 20 * Math.log10(r.threshold_ratio as number), 9);
