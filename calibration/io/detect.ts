@@ -3,7 +3,8 @@ import { classifyAll, single } from './common';
 import { IssueLog, runWithLog } from './issues';
 import { parsePhaseFlux, readPhaseFlux } from './phase';
 import { readRaw } from './raw';
-import { readHead, type TableHead } from './table';
+import Papa from 'papaparse';
+import { cellNumber, readHead, type TableHead } from './table';
 import { parseTouchstoneSet, portsFromName } from './touchstone';
 import { readTuning } from './tuning';
 import type { InputKind, ParseOptions, SweepData } from './types';
@@ -19,13 +20,27 @@ function looksLikeTouchstone(text: string): boolean {
   return false;
 }
 
+function frequencyVaries(head: TableHead, index: number): boolean {
+  const sample = Papa.parse<string[]>(head.text.slice(head.bodyStart, head.bodyStart + 20000), { delimiter: head.delimiter, preview: 50 });
+  const values = new Set<number>();
+  for (const cells of sample.data.slice(head.headerFromComment ? 0 : 1)) {
+    const v = cellNumber(cells[index] ?? '');
+    if (Number.isFinite(v)) values.add(v);
+  }
+  return values.size > 1;
+}
+
 function kindFromHead(head: TableHead, log: IssueLog): InputKind {
   const cols = classifyAll(head);
   const has = (r: string): boolean => cols.some((c) => c.role === r);
   const complex = (has('re') && has('im')) || has('mag_db') || has('mag_lin');
   if (has('frequency') && (complex || (has('re') || has('im')))) return 'raw_complex';
-  if (has('phase') && !complex) return 'phase_flux';
-  if (has('frequency') && has('phase')) return 'raw_complex';
+  if (has('phase') && !complex) {
+    // Phase with a frequency that changes row to row is a raw sweep missing its magnitude (the raw
+    // reader says so); a constant one is the probe frequency of a phase-versus-flux file.
+    const f = cols.find((c) => c.role === 'frequency');
+    return f && frequencyVaries(head, f.index) ? 'raw_complex' : 'phase_flux';
+  }
   if (has('bias') && has('frequency')) return 'tuning_points';
   single(head, cols, 'bias', log); // reports an ambiguous bias before the generic message
   return log.fatal(

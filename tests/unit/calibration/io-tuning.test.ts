@@ -196,6 +196,8 @@ describe('detectKind', () => {
     ['a.csv', 'bias [mA],phase [deg]\n0,1\n', 'phase_flux'],
     ['a.csv', 'bias [mA],phase [deg],probe frequency [GHz]\n0,1,6\n', 'phase_flux'],
     ['a.csv', 'bias [mA],fr [GHz],Qi\n0,6,1e5\n', 'tuning_points'],
+    ['a.csv', 'bias [mA],frequency [GHz],phase [deg]\n0,6.1,1\n1,6.1,2\n', 'phase_flux'],
+    ['a.csv', 'bias [mA],frequency [GHz],phase [deg]\n0,6.1,1\n0,6.2,2\n', 'raw_complex'],
   ];
   test.each(cases)('%s: %s', (name, text, kind) => {
     expect(detectKind(name, text)).toBe(kind);
