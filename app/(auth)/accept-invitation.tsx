@@ -11,6 +11,7 @@ import { Field } from '@/client/ui/Card';
 import { ErrorState, LoadingState, Notice } from '@/client/ui/States';
 import { Text } from '@/client/ui/Text';
 import { TextField } from '@/client/ui/TextField';
+import { useHydrated } from '@/client/ui/useHydrated';
 import { checkNewPassword, MIN_PASSWORD_LENGTH } from '@/client/validation';
 
 export default function AcceptInvitation() {
@@ -23,12 +24,20 @@ export default function AcceptInvitation() {
   const [password, setPassword] = useState('');
   const [confirm, setConfirm] = useState('');
   const [errors, setErrors] = useState<{ name?: string; password?: string; confirm?: string }>({});
+  const hydrated = useHydrated();
 
   useEffect(() => {
     if (preview.data && !name) setName(preview.data.name);
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [preview.data]);
 
+  if (!hydrated) {
+    return (
+      <AuthFrame title="Invitation" testID="accept-invitation-screen">
+        <LoadingState label="Checking your invitation…" />
+      </AuthFrame>
+    );
+  }
   if (!token) {
     return (
       <AuthFrame title="Invitation" testID="accept-invitation-screen">

@@ -8,6 +8,8 @@ import { Button } from '@/client/ui/Button';
 import { Notice } from '@/client/ui/States';
 import { Text } from '@/client/ui/Text';
 import { TextField } from '@/client/ui/TextField';
+import { LoadingState } from '@/client/ui/States';
+import { useHydrated } from '@/client/ui/useHydrated';
 import { checkEmail, checkNewPassword, MIN_PASSWORD_LENGTH } from '@/client/validation';
 
 function RequestForm() {
@@ -93,5 +95,13 @@ function ConfirmForm({ token }: { token: string }) {
 
 export default function ResetPassword() {
   const { token } = useLocalSearchParams<{ token?: string }>();
+  const hydrated = useHydrated();
+  if (!hydrated) {
+    return (
+      <AuthFrame title="Reset password">
+        <LoadingState />
+      </AuthFrame>
+    );
+  }
   return token ? <ConfirmForm token={token} /> : <RequestForm />;
 }

@@ -10,6 +10,7 @@ import { Button } from '@/client/ui/Button';
 import { Notice } from '@/client/ui/States';
 import { Text } from '@/client/ui/Text';
 import { TextField } from '@/client/ui/TextField';
+import { useHydrated } from '@/client/ui/useHydrated';
 import { checkEmail } from '@/client/validation';
 
 /** Only same-app paths are followed after sign-in (no open redirects). */
@@ -25,6 +26,7 @@ export default function SignIn() {
   const [email, setEmail] = useState('');
   const [password, setPassword] = useState('');
   const [emailError, setEmailError] = useState<string | null>(null);
+  const hydrated = useHydrated();
 
   if (session.status === 'signedIn' && !signIn.isPending) return <Redirect href={safeNext(next) as '/devices'} />;
 
@@ -45,7 +47,7 @@ export default function SignIn() {
 
   return (
     <AuthFrame title="Sign in" testID="sign-in-screen">
-      {reset === 'done' ? <Notice tone="ok">Your password was changed. Sign in with the new one.</Notice> : null}
+      {hydrated && reset === 'done' ? <Notice tone="ok">Your password was changed. Sign in with the new one.</Notice> : null}
       <TextField
         label="E-mail"
         testID="sign-in-email"

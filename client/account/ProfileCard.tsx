@@ -1,6 +1,5 @@
 import React from 'react';
 import { View } from 'react-native';
-import { useRouter } from 'expo-router';
 import { useSession } from '../session/SessionProvider';
 import { space } from '../theme';
 import { RoleBadge } from '../ui/Badge';
@@ -9,7 +8,6 @@ import { Card, Field } from '../ui/Card';
 
 export function ProfileCard() {
   const { user, signOut } = useSession();
-  const router = useRouter();
   const [busy, setBusy] = React.useState(false);
   if (!user) return null;
   return (
@@ -26,8 +24,8 @@ export function ProfileCard() {
           busy={busy}
           onPress={async () => {
             setBusy(true);
+            // The signed-in layout sends the person to sign-in once the session is gone.
             await signOut();
-            router.replace('/sign-in');
           }}
         />
       </View>

@@ -22,6 +22,8 @@ export interface SessionValue {
   signIn: (result: SignInResult) => void;
   signOut: () => Promise<void>;
   hasRole: (...roles: Role[]) => boolean;
+  /** True after the person pressed Sign out (as opposed to an expired or rejected token). */
+  signedOutOnPurpose: boolean;
 }
 
 const SessionContext = createContext<SessionValue | null>(null);
@@ -35,6 +37,7 @@ export function SessionProvider({ children }: { children: React.ReactNode }) {
   const queryClient = useQueryClient();
   const { value, ready, save } = useStoredValue<StoredSession>(STORAGE_KEY);
   const tokenRef = useRef<string | null>(null);
+  const [signedOutOnPurpose, setSignedOutOnPurpose] = React.useState(false);
 
   const live = value && !expired(value) ? value : null;
   tokenRef.current = live?.token ?? null;
@@ -74,6 +77,7 @@ export function SessionProvider({ children }: { children: React.ReactNode }) {
   const signIn = useCallback(
     (result: SignInResult) => {
       queryClient.clear();
+      setSignedOutOnPurpose(false);
       tokenRef.current = result.token;
       save({ token: result.token, expiresAt: result.expiresAt, user: result.user });
     },
@@ -86,6 +90,7 @@ export function SessionProvider({ children }: { children: React.ReactNode }) {
     } catch {
       /* the client drops the token regardless */
     }
+    setSignedOutOnPurpose(true);
     dropSession();
   }, [dropSession]);
 
@@ -100,8 +105,9 @@ export function SessionProvider({ children }: { children: React.ReactNode }) {
       signIn,
       signOut,
       hasRole: (...roles: Role[]) => !!user && roles.includes(user.role),
+      signedOutOnPurpose,
     }),
-    [status, user, live?.token, signIn, signOut],
+    [status, user, live?.token, signIn, signOut, signedOutOnPurpose],
   );
 
   return <SessionContext.Provider value={ctx}>{children}</SessionContext.Provider>;
