@@ -36,11 +36,6 @@ export interface CalibrateOptions {
   minSnr?: number;
   /** Phase-only line: phase velocity for L_eff, m/s. */
   phaseVelocityMps?: number | null;
-  /**
-   * Replaces the serial per-trace extraction (e.g. by a worker pool). Must return what
-   * `extractSweep` returns for the same traces.
-   */
-  extractor?: (data: RawSweepData, opts: ExtractOptions) => SweepExtraction;
 }
 
 /** Raised for a request the core cannot act on (missing probe frequency, no usable traces). */
@@ -71,8 +66,11 @@ export function extractionOptions(data: RawSweepData, opts: CalibrateOptions): E
   return { geometry: opts.geometry ?? data.geometry, delayS: opts.delayS, minSnr: opts.minSnr };
 }
 
-/** Fits already-parsed sweep data (the server parses once to validate, then fits in a worker). */
-export function calibrateSweepData(data: SweepData, opts: CalibrateOptions = {}): CalibrationJson {
+/**
+ * Fits already-parsed sweep data. For raw or Touchstone data a per-trace extraction done elsewhere
+ * (a worker pool, see calibration/workers) may be passed in; otherwise it runs here, serially.
+ */
+export function calibrateSweepData(data: SweepData, opts: CalibrateOptions = {}, extraction?: SweepExtraction): CalibrationJson {
   // Parse warnings already name their file, row and column.
   const parseWarnings = data.issues.map((i) => i.message);
   if (data.kind === 'phase_flux') {
@@ -128,7 +126,7 @@ export function calibrateSweepData(data: SweepData, opts: CalibrateOptions = {})
   // Raw complex traces or a Touchstone set: one resonance per bias point, then the tuning fit on
   // the traces that gave a trustworthy resonance. Flagged traces stay in `traces` with their reason.
   const xopts = extractionOptions(data, opts);
-  const extraction = (opts.extractor ?? serialExtractor)(data, xopts);
+  extraction ??= extractSweep(data.traces, xopts);
   const good = extraction.traces
     .map((t, i) => ({ t, i }))
     .filter(({ t }) => t.flag === null && t.fr_hz !== null);
@@ -160,10 +158,6 @@ export function calibrateSweepData(data: SweepData, opts: CalibrateOptions = {})
 /** Parse and fit in one call. */
 export function calibrateFiles(files: readonly SweepFile[], opts: CalibrateOptions = {}): CalibrationJson {
   return calibrateSweepData(parseSweepFiles(files, opts), opts);
-}
-
-function serialExtractor(data: RawSweepData, opts: ExtractOptions): SweepExtraction {
-  return extractSweep(data.traces, opts);
 }
 
 function describeFiles(file: string | string[]): string {
