@@ -71,9 +71,18 @@ FLUSH PRIVILEGES;
 SQL
 }
 
+lock() {
+  # Parallel callers (jest workers, npm start twice) must not initialise or start the same dir at once.
+  mkdir -p "$DIR"
+  if command -v flock >/dev/null 2>&1; then
+    exec 9>"$DIR/.db-sh.lock"
+    flock -w 120 9 || { log "could not lock $DIR/.db-sh.lock within 120 s"; exit 1; }
+  fi
+}
+
 start() {
   ensure_installed
-  mkdir -p "$DIR"
+  lock
   if is_running; then
     log "already running on 127.0.0.1:$PORT (data $DIR)"
     ensure_schema
@@ -93,7 +102,7 @@ start() {
   # setsid + nohup: the server outlives the shell (npm start, jest globalSetup) that launched it.
   setsid nohup "$(find_bin mariadbd)" --no-defaults --datadir="$DIR" --socket="$SOCK" \
     --pid-file="$PIDFILE" --port="$PORT" --bind-address=127.0.0.1 --user=root \
-    --skip-log-bin --log-error="$ERRLOG" >/dev/null 2>&1 < /dev/null &
+    --skip-log-bin --log-error="$ERRLOG" >/dev/null 2>&1 </dev/null 9>&- &
   local waited=0
   until is_running; do
     sleep 0.25
