@@ -5,7 +5,8 @@
 #   FW_DB_NAME      application database created on start (default fluxwright)
 #   FW_DB_USER      application user (default fluxwright)
 #   FW_DB_PASSWORD  its password (default fluxwright-local)
-# The server binds to 127.0.0.1 only; root authenticates over the socket in DIR.
+# The server binds to 127.0.0.1 only; root authenticates over the socket in DIR. Sessions run in UTC
+# (--default-time-zone), matching the API's timezone "Z" for CURRENT_TIMESTAMP defaults.
 set -euo pipefail
 
 ROOT="$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)"
@@ -101,7 +102,7 @@ start() {
   log "starting mariadbd on 127.0.0.1:$PORT (data $DIR)"
   # setsid + nohup: the server outlives the shell (npm start, jest globalSetup) that launched it.
   setsid nohup "$(find_bin mariadbd)" --no-defaults --datadir="$DIR" --socket="$SOCK" \
-    --pid-file="$PIDFILE" --port="$PORT" --bind-address=127.0.0.1 --user=root \
+    --pid-file="$PIDFILE" --port="$PORT" --bind-address=127.0.0.1 --user=root --default-time-zone=+00:00 \
     --skip-log-bin --log-error="$ERRLOG" >/dev/null 2>&1 </dev/null 9>&- &
   local waited=0
   until is_running; do
