@@ -89,6 +89,10 @@ function need(v: Values, name: string): number {
 function deviceFromValues(kind: 'tuning' | 'phase', v: Values): Device {
   const period = need(v, 'flux_period');
   const offset = need(v, 'flux_offset');
+  if (period === 0) throw new PlanError('calibration_incomplete', 'calibration params.flux_period is zero', 'calibration');
+  for (const name of kind === 'tuning' ? ['f0_hz', 'gamma0'] : ['tau_eff0_s']) {
+    if (!(need(v, name) > 0)) throw new PlanError('calibration_incomplete', `calibration params.${name} must be > 0, got ${v[name]}`, 'calibration');
+  }
   if (kind === 'tuning') {
     return {
       kind,
@@ -156,6 +160,8 @@ function validateRequest(req: PlanRequest): void {
   for (const a of req.attenuationDb ?? []) if (!Number.isFinite(a) || a < 0) throw new PlanError('bad_request', `attenuation-db entries must be finite and ≥ 0 dB, got ${a}`, 'attenuation-db');
   if (req.pumpPeriod !== undefined && req.thresholdPowerDbm !== undefined) throw new PlanError('bad_request', 'give either pump-period (with attenuation-db) or threshold-power-dbm, not both', 'threshold-power-dbm');
   if (req.thresholdPowerDbm !== undefined && req.mode === 'line') throw new PlanError('bad_request', 'threshold-power-dbm applies to cavity mode only (a line has no threshold)', 'threshold-power-dbm');
+  if (req.mode === 'cavity' && req.bandCentreHz !== undefined) throw new PlanError('bad_request', 'band-centre applies to line mode only (the cavity band is centred on f_p/2)', 'band-centre');
+  if (req.mode === 'line' && req.detuningHz !== undefined) throw new PlanError('bad_request', 'detuning applies to cavity mode only', 'detuning');
   if (req.mode === 'line' && req.pumpFrequencyHz === undefined) throw new PlanError('bad_request', 'line mode needs pump-frequency', 'pump-frequency');
   if (req.ql !== undefined && req.qc !== undefined && req.qc < req.ql) throw new PlanError('bad_request', `qc (${req.qc}) must be ≥ ql (${req.ql}): 1/Q_i = 1/Q_l − 1/Q_c would be negative`, 'qc');
   if (req.waveform) {
@@ -728,19 +734,24 @@ export interface RankOptions {
   top?: number;
   /** Uncertainty (calibration draws) is computed for this many of the best points only. */
   uncertaintyTop?: number;
+  /** Flux-noise amplitude for the noise criterion, Φ0 rms (default RANK_FLUX_NOISE_PHI0). */
+  fluxNoisePhi0?: number;
 }
 
-export const RANK_WEIGHTS = { power: 0.35, margin: 0.25, fluxNoise: 0.25, quality: 0.15 } as const;
+export const RANK_WEIGHTS = { power: 0.3, margin: 0.25, fluxNoise: 0.3, quality: 0.15 } as const;
 export const RANK_WARNING_PENALTY = 0.1;
 /** Each this many dB of pump power above the scan's lowest costs a full power score. */
-export const RANK_POWER_SPAN_DB = 20;
-/** Each this many decades of flux-noise sensitivity above the scan's lowest costs a full noise score. */
-export const RANK_NOISE_SPAN_DECADES = 2;
+export const RANK_POWER_SPAN_DB = 40;
+/** Low-frequency flux-noise amplitude used to judge flux-noise sensitivity, Φ0 rms (order of magnitude, common practice). */
+export const RANK_FLUX_NOISE_PHI0 = 1e-5;
+/** Jitter at which S_noise = 1/2: frequency jitter / linewidth (cavity), reflected-phase jitter in rad (line). */
+export const RANK_NOISE_HALF_CAVITY = 0.1;
+export const RANK_NOISE_HALF_LINE_RAD = 0.01;
 export const RANK_SCORING =
-  'score = 0.35·S_power + 0.25·S_margin + 0.25·S_noise + 0.15·S_Q − 0.1 per serious warning, each S in [0, 1]: ' +
-  'S_power = 1 − (P − P_min)/20 dB (P = generator power in dBm, or 20·log10 δΦ when no power chain is given); ' +
-  'S_margin = 1 − δΦ/δΦ_th (cavity); S_noise = 1 − log10(s/s_min)/2 with s = |df_r/dΦ| (cavity) or ω_p/2·|dτ_eff/dΦ| ' +
-  '(line, reflected-phase sensitivity); S_Q = Q_i/max Q_i over the scan (cavity); all clamped to [0, 1]. ' +
+  'score = 0.3·S_power + 0.25·S_margin + 0.3·S_noise + 0.15·S_Q − 0.1 per serious warning, each S in [0, 1]: ' +
+  'S_power = 1 − (P − P_min)/40 dB, clamped (P = generator power in dBm, or 20·log10 δΦ when no power chain is given); ' +
+  'S_margin = 1 − δΦ/δΦ_th (cavity); S_noise = 1/(1 + (j/j_half)²) with flux noise Φ_n = 1e-5 Φ0 rms: cavity j = |df_r/dΦ|·Φ_n/(κ/2π), ' +
+  'j_half = 0.1; line j = (ω_p/2)·|dτ_eff/dΦ|·Φ_n (reflected-phase jitter, rad), j_half = 0.01; S_Q = Q_i/max Q_i over the scan (cavity). ' +
   'Line mode has no threshold or Q: their weights move to power. Serious warnings: near_threshold, beyond_linear_response, ' +
   'near_lobe_edge, hysteretic_squid, cold_stage_power. Power and flux-noise pull in opposite directions (δΦ ∝ 1/slope).';
 
@@ -787,16 +798,17 @@ export function rankOperatingPoints(calibration: CalibrationJson, request: PlanR
   const cavity = request.mode === 'cavity';
   const powerDb = plans.map((p) => p.generator_power_dbm ?? 20 * Math.log10(p.pump_amplitude_phi0));
   const margin = plans.map((p) => (p.threshold_ratio !== null ? 1 - p.threshold_ratio : 0));
+  const phiN = options.fluxNoisePhi0 ?? RANK_FLUX_NOISE_PHI0;
   const noise = plans.map((p) => (cavity ? Math.abs(p.slope_hz_per_phi0 ?? 0) : Math.PI * p.pump_frequency_hz * Math.abs(p.dtau_dphi_s_per_phi0 ?? 0)));
+  const jitter = plans.map((p, i) => (cavity ? (noise[i] * phiN) / (p.kappa_over_2pi_hz as number) / RANK_NOISE_HALF_CAVITY : (noise[i] * phiN) / RANK_NOISE_HALF_LINE_RAD));
   const quality = plans.map((p) => p.qi ?? 0);
   const pMin = Math.min(...powerDb);
-  const nMin = Math.min(...noise.filter((x) => x > 0));
   const qMax = Math.max(...quality);
   const w = cavity ? RANK_WEIGHTS : { power: RANK_WEIGHTS.power + RANK_WEIGHTS.margin + RANK_WEIGHTS.quality, margin: 0, fluxNoise: RANK_WEIGHTS.fluxNoise, quality: 0 };
   const scored = plans.map((p, i) => {
     const sp = clamp01(1 - (powerDb[i] - pMin) / RANK_POWER_SPAN_DB);
     const sm = clamp01(margin[i]);
-    const sn = clamp01(1 - Math.log10(noise[i] / nMin) / RANK_NOISE_SPAN_DECADES);
+    const sn = 1 / (1 + jitter[i] * jitter[i]);
     const sq = qMax > 0 ? clamp01(quality[i] / qMax) : 0;
     const seriousCodes = p.warnings.filter((x) => SERIOUS.has(x.code)).map((x) => x.code);
     const score = w.power * sp + w.margin * sm + w.fluxNoise * sn + w.quality * sq - RANK_WARNING_PENALTY * seriousCodes.length;
@@ -812,7 +824,9 @@ export function rankOperatingPoints(calibration: CalibrationJson, request: PlanR
       ? `generator power ${p.generator_power_dbm.toFixed(1)} dBm (${above.toFixed(1)} dB above the scan's lowest)`
       : `pump amplitude ${p.pump_amplitude_phi0.toPrecision(3)} Φ0 (${above.toFixed(1)} dB above the scan's lowest)`);
     if (cavity) reasons.push(`threshold margin ${(margin[s.i] * 100).toFixed(1)} % (δΦ/δΦ_th = ${(p.threshold_ratio ?? NaN).toFixed(3)})`);
-    reasons.push(cavity ? `flux-noise sensitivity |df/dΦ| = ${(noise[s.i] / 1e6).toPrecision(4)} MHz/Φ0` : `reflected-phase sensitivity ${noise[s.i].toPrecision(3)} rad/Φ0 at the band centre`);
+    reasons.push(cavity
+      ? `flux-noise sensitivity |df/dΦ| = ${(noise[s.i] / 1e6).toPrecision(4)} MHz/Φ0: ${phiN} Φ0 of flux noise moves f_r by ${((noise[s.i] * phiN) / (p.kappa_over_2pi_hz as number)).toPrecision(2)} linewidths`
+      : `reflected-phase sensitivity ${noise[s.i].toPrecision(3)} rad/Φ0 at the band centre (${(noise[s.i] * phiN).toPrecision(2)} rad for ${phiN} Φ0 of flux noise)`);
     if (cavity && p.qi !== null) reasons.push(`Q_i = ${p.qi.toPrecision(3)} (${p.q_source})`);
     if (s.seriousCodes.length > 0) reasons.push(`warnings: ${s.seriousCodes.join(', ')}`);
     let plan = p;

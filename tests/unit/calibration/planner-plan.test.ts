@@ -305,7 +305,7 @@ describe('operating-point ranking', () => {
     }
     expect(r.points[0].plan.uncertainty).not.toBeNull();
     expect(r.points[4].plan.uncertainty).toBeNull();
-    expect(r.scoring).toMatch(/0\.35/);
+    expect(r.scoring).toMatch(/0\.3·S_power/);
   });
   test('serious warnings cost score: with a cold-stage limit that flags the high-power biases the best point has none', () => {
     const chain = { pumpPeriod: 1e-3, attenuationDb: [20, 20, 20], coldStageLimitW: 1e-10 };
@@ -315,6 +315,13 @@ describe('operating-point ranking', () => {
     const r = rankOperatingPoints(cal, { ...cav, fluxPhi0: undefined, ...chain }, { top: 3 });
     expect(r.points[0].plan.warnings.filter((w) => w.code === 'cold_stage_power')).toHaveLength(0);
     expect(r.points[0].plan.generator_power_dbm).not.toBeNull();
+  });
+  test('flux-noise criterion: more flux noise moves the best point towards the sweet spot (smaller slope)', () => {
+    const req = { ...cav, fluxPhi0: undefined, ql: 2e5, qc: 2.4e5, uncertaintyDraws: 0 };
+    const quiet = rankOperatingPoints(cal, req, { top: 1, fluxNoisePhi0: 1e-8 }).points[0];
+    const noisy = rankOperatingPoints(cal, req, { top: 1, fluxNoisePhi0: 3e-6 }).points[0];
+    expect(Math.abs(noisy.plan.slope_hz_per_phi0 as number)).toBeLessThan(0.5 * Math.abs(quiet.plan.slope_hz_per_phi0 as number));
+    expect(Math.abs(noisy.operating_flux_phi0)).toBeLessThan(Math.abs(quiet.operating_flux_phi0));
   });
   test('line mode ranking runs over the phase calibration', () => {
     const r = rankOperatingPoints(lineCal, { ...lineReq, fluxPhi0: undefined }, { top: 3 });
