@@ -133,6 +133,12 @@ describe('column roles', () => {
     ['S21 phase [rad]', 'phase', 'S21'],
     ['arg(S11) [rad]', 'phase', 'S11'],
     ['probe frequency [GHz]', 'probe_frequency', null],
+    ['S21 (dB)', 'mag_db', 'S21'],
+    ['S21 magnitude [dB]', 'mag_db', 'S21'],
+    ['S21_phase_deg', 'phase', 'S21'],
+    ['S21.real', 're', 'S21'],
+    ['Phase(S21) [deg]', 'phase', 'S21'],
+    ['coil_current_uA', 'bias', null],
     ['temperature [mK]', null, null],
     ['S21', null, 'S21'],
   ];
