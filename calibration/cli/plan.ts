@@ -23,7 +23,7 @@ class ArgError extends Error {
 const VALUE_OPTIONS = new Set([
   'calibration', 'mode', 'flux', 'bias', 'target-pair-rate', 'target-gain-db', 'ql', 'qc', 'band', 'band-centre',
   'pump-frequency', 'detuning', 'temperature', 'pump-period', 'attenuation-db', 'threshold-power-dbm', 'pump-line-z0',
-  'cold-stage-limit-w', 'draws', 'seed', 'waveform', 'phase-velocity', 'points', 'top',
+  'cold-stage-limit-w', 'draws', 'seed', 'waveform', 'phase-velocity', 'points', 'top', 'flux-noise',
 ]);
 const FLAG_OPTIONS = new Set(['json', 'help']);
 
@@ -34,7 +34,7 @@ export const PLAN_USAGE = [
   '     [--pump-period A_PER_PHI0 --attenuation-db DB[,DB...] | --threshold-power-dbm P]',
   '     [--pump-line-z0 OHM] [--cold-stage-limit-w W] [--waveform K:A[@PHASE],...] [--phase-velocity M_PER_S]',
   '     [--draws N] [--seed S] [--json]',
-  'rank  (same options; --flux/--bias ignored) [--points N] [--top K] [--json]',
+  'rank  (same options; --flux/--bias ignored) [--points N] [--top K] [--flux-noise PHI0_RMS] [--json]',
 ].join('\n');
 
 function parseArgs(argv: readonly string[]): Map<string, string | true> {
@@ -233,7 +233,9 @@ function run(argv: readonly string[], kind: 'plan' | 'rank'): CliOutput {
     const top = num(opts, 'top');
     if (points !== undefined && !(Number.isInteger(points) && points >= 200 && points <= 5000)) throw new ArgError('--points', `--points must be an integer 200..5000, got ${points}`);
     if (top !== undefined && !(Number.isInteger(top) && top >= 1 && top <= 100)) throw new ArgError('--top', `--top must be an integer 1..100, got ${top}`);
-    const r = rankOperatingPoints(cal, req, { points, top });
+    const fluxNoise = num(opts, 'flux-noise');
+    if (fluxNoise !== undefined && !(fluxNoise > 0 && fluxNoise < 0.5)) throw new ArgError('--flux-noise', `--flux-noise must be in (0, 0.5) Φ0, got ${fluxNoise}`);
+    const r = rankOperatingPoints(cal, req, { points, top, fluxNoisePhi0: fluxNoise });
     return { stdout: json ? JSON.stringify(r) + '\n' : formatRank(r), exitCode: 0 };
   } catch (e) {
     if (e instanceof ArgError) {

@@ -97,6 +97,13 @@ describe('rank command', () => {
     expect(txt.stdout).toMatch(/rank\s+bias/);
     expect(txt.stdout).toMatch(/Scoring:/);
   });
+  test('--flux-noise reaches the ranking (a noisier flux picks a smaller slope)', () => {
+    const argv = ['--calibration', file, '--mode', 'cavity', '--target-pair-rate', '1e5', '--ql', '2e5', '--qc', '2.4e5', '--top', '1', '--draws', '0', '--json'];
+    const quiet = JSON.parse(runRank([...argv, '--flux-noise', '1e-8']).stdout).points[0].plan;
+    const noisy = JSON.parse(runRank([...argv, '--flux-noise', '3e-6']).stdout).points[0].plan;
+    expect(Math.abs(noisy.slope_hz_per_phi0)).toBeLessThan(Math.abs(quiet.slope_hz_per_phi0));
+    expect(runRank([...argv, '--flux-noise', '-1']).exitCode).toBe(2);
+  });
   test('bad --points exits 2', () => {
     const out = runRank(['--calibration', file, '--mode', 'cavity', '--target-pair-rate', '1e5', '--points', '10']);
     expect(out.exitCode).toBe(2);
