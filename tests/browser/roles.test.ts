@@ -3,6 +3,9 @@ import type { Browser } from 'playwright-core';
 import { startTestServer, type TestServer } from '@/tests/support/testServer';
 import { DEMO, type DemoRole, launchChromium, linkIn, openPage, PHONE, requireExport, SESSION_KEY, sessionToken, signInThroughUi, WIDE } from './support';
 
+// The browser project's testTimeout in jest.config.js is not applied per project, so set it here.
+jest.setTimeout(240_000);
+
 let server: TestServer;
 let browser: Browser;
 
