@@ -297,9 +297,21 @@ function cavityDetuning(pt: CavityPoint, s: CavitySettings, deltaPhi: number): n
 
 function cavityThreshold(pt: CavityPoint, s: CavitySettings): number | null {
   if (s.fixedPumpHz === null) return thresholdModulation(pt.kappa, s.detuningRad) / pt.slopeRad;
-  // Smallest δΦ with slope·δΦ = δω_th(Δ(δΦ)); search up to one flux quantum.
-  const h = (dp: number) => pt.slopeRad * dp - thresholdModulation(pt.kappa, cavityDetuning(pt, s, dp));
-  return solveRising(h, 0, 0, 1);
+  return fixedPumpThreshold(pt.slopeRad, pt.kappa, cavityDetuning(pt, s, 0), (2 * Math.PI * pt.d2f) / 4);
+}
+
+/**
+ * Threshold with the pump frequency fixed: Δ(δΦ) = Δ0 + c·δΦ² (c = 2π·f″/4, the pump shift), and
+ * (s·δΦ/2)² = Δ(δΦ)² + κ²/4 is quadratic in u = δΦ²:  c²u² − (s²/4 − 2Δ0c)u + Δ0² + κ²/4 = 0.
+ * Smallest positive root in the cancellation-free form u = 2C/(B + sqrt(B² − 4AC)); null when none.
+ */
+export function fixedPumpThreshold(slopeRad: number, kappa: number, detuning0: number, c: number): number | null {
+  const A = c * c;
+  const B = (slopeRad * slopeRad) / 4 - 2 * detuning0 * c;
+  const C = detuning0 * detuning0 + (kappa * kappa) / 4;
+  const disc = B * B - 4 * A * C;
+  if (!(B > 0) || !(disc >= 0)) return null;
+  return Math.sqrt((2 * C) / (B + Math.sqrt(disc)));
 }
 
 function cavityEvaluate(pt: CavityPoint, s: CavitySettings, deltaPhi: number, thresholdPhi: number): CavityEval {

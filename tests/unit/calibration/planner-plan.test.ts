@@ -51,6 +51,18 @@ describe('round trip plan → rate → re-solve gives the same δΦ to 1e-9', ()
     expect(rel(b.pump_amplitude_phi0, a.pump_amplitude_phi0)).toBeLessThan(1e-9);
   });
 
+  test('fixed-pump threshold closed form equals a brute-force scan of slope·δΦ − δω_th(Δ(δΦ))', () => {
+    const p = planCavity(cal, { ...cav, pumpFrequencyHz: planCavity(cal, cav).pump_frequency_hz + 2e6 });
+    const s = 2 * Math.PI * Math.abs(p.slope_hz_per_phi0 as number);
+    const kappa = 2 * Math.PI * (p.kappa_over_2pi_hz as number);
+    const c = (2 * Math.PI * (p.curvature_hz_per_phi0_sq as number)) / 4;
+    const d0 = 2 * Math.PI * ((p.resonance_hz as number) - p.pump_frequency_hz / 2);
+    const h = (x: number) => (s * x) / 2 - Math.sqrt((d0 + c * x * x) ** 2 + (kappa * kappa) / 4);
+    let x = 0;
+    const step = 1e-8;
+    while (h(x) < 0) x += step;
+    expect(Math.abs((p.threshold_amplitude_phi0 as number) - x)).toBeLessThan(2 * step);
+  });
   test('cavity, gain target: gain_db reproduces the target and re-solving gives the same δΦ', () => {
     const a = planCavity(cal, { ...cav, targetPairRate: undefined, targetGainDb: 15 });
     expect(a.gain_db as number).toBeCloseTo(15, 9);
