@@ -183,3 +183,31 @@ test('the lab lead invites a new person; the e-mail link lets them set a passwor
   expect(guest.errors.filter((e) => !e.includes('404'))).toEqual([]);
   await guest.context.close();
 });
+
+test('a device engineer registers a device and a cooldown; invalid numbers are refused before sending', async () => {
+  const { page, context, errors } = await openPage(browser, WIDE);
+  await signInThroughUi(page, server.url, DEMO.device_engineer.email, DEMO.device_engineer.password);
+  await page.getByTestId('new-device').click();
+  await page.getByTestId('new-device-name').fill('Q9-R2');
+  await page.getByTestId('new-device-batch').getByRole('radio', { name: 'NB-2614' }).click();
+  await page.getByLabel('Design frequency (GHz)').fill('six');
+  await page.getByTestId('new-device-submit').click();
+  await page.getByText('Design frequency: "six" is not a number.').waitFor();
+  await page.getByLabel('Design frequency (GHz)').fill('6.431');
+  await page.getByLabel('SQUID loop inductance (pH)').fill('38');
+  await page.getByTestId('new-device-submit').click();
+  await page.waitForURL((u) => /^\/devices\/\d+$/.test(u.pathname));
+  await page.getByTestId('device-detail').waitFor();
+  expect(await page.getByTestId('device-name').textContent()).toBe('Q9-R2');
+  // GHz and pH typed in the form arrive in SI units and come back formatted.
+  expect(await page.getByTestId('design-frequency').textContent()).toContain('6.431 GHz');
+  await page.getByTestId('device-row-Q9-R2').waitFor(); // the list pane was refreshed
+
+  await page.getByTestId('add-cooldown').click();
+  await page.getByTestId('cooldown-fridge').fill('Dilution fridge Brisk');
+  await page.getByTestId('cooldown-submit').click();
+  await page.getByText('Dilution fridge Brisk').waitFor();
+  expect(await page.getByText('Cooldowns (1)', { exact: false }).count()).toBe(1);
+  expect(errors).toEqual([]);
+  await context.close();
+});
