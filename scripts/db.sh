@@ -7,6 +7,8 @@
 #   FW_DB_PASSWORD  its password (default fluxwright-local)
 # The server binds to 127.0.0.1 only; root authenticates over the socket in DIR. Sessions run in UTC
 # (--default-time-zone), matching the API's timezone "Z" for CURRENT_TIMESTAMP defaults.
+# Sweep uploads store the raw file bytes (tens of MB): max_allowed_packet is raised above the 16 MB
+# default, and the redo log is sized so one large blob stays well under InnoDB's share of it.
 set -euo pipefail
 
 ROOT="$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)"
@@ -103,6 +105,7 @@ start() {
   # setsid + nohup: the server outlives the shell (npm start, jest globalSetup) that launched it.
   setsid nohup "$(find_bin mariadbd)" --no-defaults --datadir="$DIR" --socket="$SOCK" \
     --pid-file="$PIDFILE" --port="$PORT" --bind-address=127.0.0.1 --user=root --default-time-zone=+00:00 \
+    --max-allowed-packet="${FW_DB_MAX_PACKET:-256M}" --innodb-log-file-size="${FW_DB_REDO_LOG:-512M}" \
     --skip-log-bin --log-error="$ERRLOG" >/dev/null 2>&1 </dev/null 9>&- &
   local waited=0
   until is_running; do
