@@ -22,7 +22,8 @@ import { fitCirclePratt } from './circle';
 import type { ResonatorGeometry } from './models';
 import {
   centredPhase,
-  delayFromPhaseSlope,
+  delayCandidates,
+  locateNarrowResonance,
   noiseFromSecondDifferences,
   refineDelay,
   removeDelay,
@@ -89,7 +90,13 @@ export interface TraceExtraction {
   /** Window centre that alpha_ref in `fit` refers to, Hz. */
   fRefHz: number;
   /** Algebraic (pre-refinement) estimates, for diagnostics. */
-  initial: { frHz: number; ql: number; qcAbs: number; phiRad: number; a: number; alphaRad: number; delayS: number } | null;
+  initial: {
+    frHz: number; ql: number; qcAbs: number; phiRad: number; a: number; alphaRad: number; delayS: number;
+    /** Iterations of the centred-phase fit. */
+    phaseFitIterations: number;
+    /** Index range [lo, hi) the algebraic steps used (a crop around a narrow resonance, or all). */
+    window: [number, number];
+  } | null;
   elapsedMs: number;
 }
 
@@ -100,6 +107,8 @@ const DEFAULT_MIN_DELTA_CHI2 = 50;
  * resolvable resonance (which make LM wander) from costing 100× a good one in a sweep.
  */
 const DEFAULT_MAX_ITERATIONS = 30;
+/** Iterations after which a not-yet-converged refinement must show a significant resonance. */
+const FIRST_STAGE_ITERATIONS = 8;
 /** Window must cover this many linewidths (Q_l·span/f_r), common practice. */
 const MIN_LINEWIDTHS_IN_SPAN = 2;
 /** A linewidth must cover this many frequency steps to be resolved, common practice. */
@@ -221,34 +230,48 @@ export function extractResonance(
   const step = uniformStep(freqHz);
   const meanStep = span / (n - 1);
 
-  // 1. Cable delay.
+  // 1. Cable delay candidates from the wings; with the joint one removed, look for a resonance that
+  // is narrow compared with the window and, if found, run the algebraic steps on a crop around it.
+  const candidates = opts.delayS !== undefined ? [opts.delayS] : delayCandidates(freqHz, re, im);
+  const wr = new Float64Array(n);
+  const wi = new Float64Array(n);
+  removeDelay(freqHz, re, im, fRef, candidates[0], wr, wi, step);
+  const crop = locateNarrowResonance(freqHz, wr, wi, Math.SQRT2 * noiseFromSecondDifferences(freqHz, re, im));
+  const lo = crop ? crop.lo : 0;
+  const hi = crop ? crop.hi : n;
+  const m = hi - lo;
+  const fa = crop ? Float64Array.from({ length: m }, (_, i) => freqHz[lo + i]) : freqHz;
+  const ra = crop ? Float64Array.from({ length: m }, (_, i) => re[lo + i]) : re;
+  const ia = crop ? Float64Array.from({ length: m }, (_, i) => im[lo + i]) : im;
   let tau: number;
   if (opts.delayS !== undefined) {
     tau = opts.delayS;
   } else {
-    const tau0 = delayFromPhaseSlope(freqHz, re, im);
-    // Search ±0.3 turn of residual phase across the window around the wing estimate.
-    tau = refineDelay(freqHz, re, im, fRef, tau0, 0.3 / span, step).tau;
+    // Search ±0.3 turn of residual phase across the whole window around the best candidate (the
+    // wing estimate is that good); judge circularity on the crop, where the resonance dominates.
+    tau = refineDelay(fa, ra, ia, fRef, candidates, 0.3 / span, step).tau;
   }
-  const wr = new Float64Array(n);
-  const wi = new Float64Array(n);
-  removeDelay(freqHz, re, im, fRef, tau, wr, wi, step);
+  const war = crop ? new Float64Array(m) : wr;
+  const wai = crop ? new Float64Array(m) : wi;
+  removeDelay(fa, ra, ia, fRef, tau, war, wai, step);
 
   // 2. Circle.
-  const circle = fitCirclePratt(wr, wi, n);
+  const circle = fitCirclePratt(war, wai, m);
   if (circle === null) {
     return nullResult(geometry, fRef, Math.SQRT2 * noiseFromSecondDifferences(freqHz, re, im), 'fit_failed', 'circle fit failed: the points are degenerate (all equal or collinear)', t0);
   }
 
   // 3. Angle about the centre.
-  const { theta, guess } = centredPhase(freqHz, wr, wi, circle);
+  const fp = fa;
+  const mp = m;
+  const { theta, guess } = centredPhase(fp, war, wai, circle);
   const phaseFit = leastSquares(
     (p) => {
-      const out = new Float64Array(n);
+      const out = new Float64Array(mp);
       const th0 = p.theta0;
       const fr = p.fr;
       const ql = p.ql;
-      for (let i = 0; i < n; i++) out[i] = wrapAngle(theta[i] - th0 - 2 * Math.atan(2 * ql * (1 - freqHz[i] / fr)));
+      for (let i = 0; i < mp; i++) out[i] = wrapAngle(theta[i] - th0 - 2 * Math.atan(2 * ql * (1 - fp[i] / fr)));
       return out;
     },
     [
@@ -256,19 +279,19 @@ export function extractResonance(
       { name: 'fr', value: guess.frHz },
       { name: 'ql', value: guess.ql, min: 1 },
     ],
-    { maxIterations: 200, computeCovariance: false },
+    { maxIterations: 20, computeCovariance: false },
     (p, names) => {
-      const rows: number[][] = new Array(n);
+      const rows: number[][] = new Array(mp);
       const fr = p.fr;
       const ql = p.ql;
       const full = names.length === 3 && names[0] === 'theta0' && names[1] === 'fr' && names[2] === 'ql';
       const idx = names.map((nm) => ['theta0', 'fr', 'ql'].indexOf(nm));
-      for (let i = 0; i < n; i++) {
-        const x = 1 - freqHz[i] / fr;
+      for (let i = 0; i < mp; i++) {
+        const x = 1 - fp[i] / fr;
         const u = 2 * ql * x;
         const w = 2 / (1 + u * u);
         // residual = θ_i − model; d model/dθ0 = 1, d/dfr = w·2Q f/fr², d/dQ = w·2x.
-        const dF = (-w * 2 * ql * freqHz[i]) / (fr * fr);
+        const dF = (-w * 2 * ql * fp[i]) / (fr * fr);
         const dQ = -w * 2 * x;
         if (full) rows[i] = [-1, dF, dQ];
         else {
@@ -303,6 +326,7 @@ export function extractResonance(
   const initial = {
     frHz: frInit, ql: qlInit, qcAbs: qcInit, phiRad: phiInit, a: aInit,
     alphaRad: wrapAngle(alphaRefInit + 2 * Math.PI * fRef * tau), delayS: tau,
+    phaseFitIterations: phaseFit.iterations, window: [lo, hi] as [number, number],
   };
 
   // Noise off resonance: exclude ±5 linewidths around the first estimate.
@@ -374,7 +398,8 @@ export function extractResonance(
       const dsPi = -klr;
       const w = -2 * Math.PI * (f - fRef);
       // a, alpha_ref, tau
-      dRe[0] = m_r / q.a; dIm[0] = m_i / q.a;
+      // ∂m/∂a = (B/a)·S, written without dividing by a (a may sit on its bound 0).
+      dRe[0] = pc[i] * sr - ps[i] * si; dIm[0] = pc[i] * si + ps[i] * sr;
       dRe[1] = -m_i; dIm[1] = m_r;
       dRe[2] = -w * m_i; dIm[2] = w * m_r;
       dRe[3] = br * dsFr - bi * dsFi; dIm[3] = br * dsFi + bi * dsFr;
@@ -411,29 +436,16 @@ export function extractResonance(
   // An algebraic f_r more than half a span outside the window means only a tail (or nothing) is
   // visible: refining would only wander, and the trace is flagged from the estimate.
   const initialNearWindow = frInit > f0 - 0.5 * span && frInit < f1 + 0.5 * span;
-  let fit: FitResult | undefined;
-  if (initialOk && initialNearWindow) {
-    fit = leastSquares(residual, specs, { maxIterations: opts.maxIterations ?? DEFAULT_MAX_ITERATIONS, xtol: 1e-12, ftol: 1e-12 }, jacobian);
-  }
+  const valuesOf = (ft: FitResult): ModelPoint => point(Object.fromEntries(Object.entries(ft.params).map(([k, p]) => [k, p.value])));
+  const isFinitePoint = (q: ModelPoint) => [q.a, q.alphaRef, q.tau, q.fr, q.ql, q.qc, q.phi].every(Number.isFinite) && q.ql > 0 && q.qc > 0 && q.a > 0;
 
-  // Values to judge: the refinement when it converged, else the algebraic estimate.
-  // A non-converged refinement still returns its last accepted point, which fits at least as well
-  // as the algebraic start: judge presence of a resonance on it.
-  const converged = fit !== undefined && fit.success;
-  const fitPoint = fit ? point(Object.fromEntries(Object.entries(fit.params).map(([k, p]) => [k, p.value]))) : null;
-  const v: ModelPoint = fitPoint && Object.values(fitPoint).every(Number.isFinite)
-    ? fitPoint
-    : { a: aInit, alphaRef: alphaRefInit, tau, fr: frInit, ql: qlInit, qc: qcInit, phi: phiInit };
-  const finite = [v.a, v.alphaRef, v.tau, v.fr, v.ql, v.qc, v.phi].every(Number.isFinite) && v.ql > 0 && v.qc > 0 && v.a > 0;
-
-  // Significance against a resonance-free background a·e^{iα}·e^{−2πifτ} at the same τ.
-  let deltaChi2: number | null = null;
-  let noiseRms: number | null = null;
-  if (finite) {
-    modelInto(geometry, freqHz, fRef, v, mr, mi, step, pc, ps);
+  // Significance against a resonance-free background a·e^{iα}·e^{−2πifτ} at the same τ:
+  // Δχ² = (SS_background − SS_resonance)/σ², σ² = SS_resonance/(2N − p).
+  const significance = (q: ModelPoint): { deltaChi2: number; noiseRms: number } => {
+    modelInto(geometry, freqHz, fRef, q, mr, mi, step, pc, ps);
     let ssRes = 0;
     for (let i = 0; i < n; i++) ssRes += (re[i] - mr[i]) ** 2 + (im[i] - mi[i]) ** 2;
-    removeDelay(freqHz, re, im, fRef, v.tau, wr, wi, step);
+    removeDelay(freqHz, re, im, fRef, q.tau, wr, wi, step);
     let mR = 0;
     let mI = 0;
     for (let i = 0; i < n; i++) {
@@ -444,11 +456,40 @@ export function extractResonance(
     mI /= n;
     let ssBg = 0;
     for (let i = 0; i < n; i++) ssBg += (wr[i] - mR) ** 2 + (wi[i] - mI) ** 2;
-    const dof = 2 * n - names.length;
-    const sigma2 = Math.max(ssRes / dof, 1e-300);
-    noiseRms = Math.sqrt(2 * sigma2);
-    deltaChi2 = (ssBg - ssRes) / sigma2;
+    const sigma2 = Math.max(ssRes / (2 * n - names.length), 1e-300);
+    return { deltaChi2: (ssBg - ssRes) / sigma2, noiseRms: Math.sqrt(2 * sigma2) };
+  };
+
+  // Refinement in two stages: a short first run; if it has not converged and what it found is not
+  // significant, the trace has no resonance and the remaining iterations are not spent on it.
+  const cap = opts.maxIterations ?? DEFAULT_MAX_ITERATIONS;
+  const firstStage = Math.min(cap, FIRST_STAGE_ITERATIONS);
+  const initialPoint: ModelPoint = { a: aInit, alphaRef: alphaRefInit, tau, fr: frInit, ql: qlInit, qc: qcInit, phi: phiInit };
+  // Pure noise: the centred-phase fit wanders to its cap and the algebraic estimate explains
+  // nothing; then the refinement is skipped (the trace is judged on the estimate).
+  const hopeless = initialOk && !phaseFit.success && isFinitePoint(initialPoint) && significance(initialPoint).deltaChi2 < minDeltaChi2;
+  let fit: FitResult | undefined;
+  if (initialOk && initialNearWindow && !hopeless) {
+    fit = leastSquares(residual, specs, { maxIterations: firstStage }, jacobian);
+    if (!fit.success && fit.iterations >= firstStage && cap > firstStage) {
+      const q = valuesOf(fit);
+      if (isFinitePoint(q) && significance(q).deltaChi2 >= minDeltaChi2) {
+        const restart = specs.map((sp) => ({ ...sp, value: fit!.params[sp.name].value }));
+        fit = leastSquares(residual, restart, { maxIterations: cap - firstStage }, jacobian);
+      }
+    }
   }
+
+  // Values to judge: the refinement when it converged, else the algebraic estimate.
+  // A non-converged refinement still returns its last accepted point, which fits at least as well
+  // as the algebraic start: judge presence of a resonance on it.
+  const converged = fit !== undefined && fit.success;
+  const fitPoint = fit ? valuesOf(fit) : null;
+  const v: ModelPoint = fitPoint && Object.values(fitPoint).every(Number.isFinite) ? fitPoint : initialPoint;
+  const finite = isFinitePoint(v);
+  let deltaChi2: number | null = null;
+  let noiseRms: number | null = null;
+  if (finite) ({ deltaChi2, noiseRms } = significance(v));
 
   const radius = finite ? (notch ? (v.a * v.ql) / (2 * v.qc) : (v.a * v.ql) / v.qc) : null;
   const snr = radius !== null && noiseRms !== null ? (2 * radius) / noiseRms : null;

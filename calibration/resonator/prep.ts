@@ -113,16 +113,19 @@ export function unwrappedPhase(re: ArrayLike<number>, im: ArrayLike<number>, n =
 }
 
 /**
- * Cable delay from the slope of the unwrapped phase on the two off-resonant wings (first and last
- * `frac` of the points), with a common slope and one intercept per wing so that the 2π the
- * resonance may add between the wings does not bias it. arg S = −2πfτ + const → τ = −slope/2π.
+ * Cable-delay candidates from the slope of the unwrapped phase on the off-resonant wings (first and
+ * last `frac` of the points): arg S = −2πfτ + const → τ = −slope/2π. Returns the joint estimate
+ * (common slope, one intercept per wing, so the 2π the resonance may add between the wings does not
+ * bias it) and each wing's own estimate: when the resonance sits near one edge, that wing is
+ * curved and only the other one measures the cable; the circle-fit quality decides between them.
  */
-export function delayFromPhaseSlope(freqHz: ArrayLike<number>, re: ArrayLike<number>, im: ArrayLike<number>, frac = 0.1): number {
+export function delayCandidates(freqHz: ArrayLike<number>, re: ArrayLike<number>, im: ArrayLike<number>, frac = 0.1): number[] {
   const n = freqHz.length;
   const ph = unwrappedPhase(re, im, n);
   const m = Math.max(5, Math.floor(frac * n));
-  let sxy = 0;
-  let sxx = 0;
+  let sxyAll = 0;
+  let sxxAll = 0;
+  const out: number[] = [];
   for (const [lo, hi] of [[0, m], [n - m, n]] as const) {
     let fm = 0;
     let pm = 0;
@@ -132,13 +135,24 @@ export function delayFromPhaseSlope(freqHz: ArrayLike<number>, re: ArrayLike<num
     }
     fm /= hi - lo;
     pm /= hi - lo;
+    let sxx = 0;
+    let sxy = 0;
     for (let i = lo; i < hi; i++) {
       const df = freqHz[i] - fm;
       sxx += df * df;
       sxy += df * (ph[i] - pm);
     }
+    sxxAll += sxx;
+    sxyAll += sxy;
+    if (sxx > 0) out.push(-sxy / sxx / (2 * Math.PI));
   }
-  return sxx > 0 ? -sxy / sxx / (2 * Math.PI) : 0;
+  out.unshift(sxxAll > 0 ? -sxyAll / sxxAll / (2 * Math.PI) : 0);
+  return out.filter(Number.isFinite);
+}
+
+/** Joint two-wing delay estimate (first entry of delayCandidates). */
+export function delayFromPhaseSlope(freqHz: ArrayLike<number>, re: ArrayLike<number>, im: ArrayLike<number>, frac = 0.1): number {
+  return delayCandidates(freqHz, re, im, frac)[0] ?? 0;
 }
 
 /**
@@ -195,12 +209,13 @@ export function uniformStep(freqHz: ArrayLike<number>): number | null {
 /**
  * Refines τ so that the delay-corrected data best form a circle: 1-D minimisation of the rms
  * geometric distance from the Pratt circle (Probst et al. 2015 refine the delay by the circle-fit
- * residual). Coarse scan over τ0 ± halfRange, then golden-section search around the best node.
+ * residual). Coarse scan over τ0 ± halfRange around the best candidate, then golden-section search
+ * around the best node.
  * The unnormalised distance is used: normalising by r would reward the large circle that a wrongly
  * delay-corrected background traces around the origin.
  */
 export function refineDelay(
-  freqHz: ArrayLike<number>, re: ArrayLike<number>, im: ArrayLike<number>, fRef: number, tau0: number,
+  freqHz: ArrayLike<number>, re: ArrayLike<number>, im: ArrayLike<number>, fRef: number, candidates: readonly number[],
   halfRange: number, step: number | null,
 ): { tau: number; evaluations: number } {
   const n = freqHz.length;
@@ -213,6 +228,18 @@ export function refineDelay(
     const c = fitCirclePratt(wr, wi, n);
     return c ? c.rmsDistance : Infinity;
   };
+  // Start from the candidate whose delay-corrected data are most circular.
+  let tau0 = candidates[0] ?? 0;
+  if (candidates.length > 1) {
+    let c0 = Infinity;
+    for (const t of candidates) {
+      const c = cost(t);
+      if (c < c0) {
+        c0 = c;
+        tau0 = t;
+      }
+    }
+  }
   const nodes = 8;
   let best = 0;
   let bestCost = Infinity;
@@ -341,4 +368,59 @@ export function wrapAngle(x: number): number {
   if (x > -Math.PI && x <= Math.PI) return x;
   const t = x - 2 * Math.PI * Math.floor((x + Math.PI) / (2 * Math.PI));
   return t <= -Math.PI ? t + 2 * Math.PI : t;
+}
+
+/**
+ * Rough location of a resonance that is narrow compared with the window (a flux sweep often keeps
+ * one wide window while the resonance tunes across it). With the delay removed, most points sit at
+ * the off-resonant point P, so the component-wise median estimates P; the distance |w − P| =
+ * a·(Q_l/|Q_c|)·|1/(1 + 2iQ_l x)| then peaks at f_r with a full width at half maximum of √3·f_r/Q_l.
+ * Returns the index range [lo, hi) covering ±`halfWidths` linewidths around the peak when the
+ * window spans more than `minLinewidths` of them and the peak stands out of the noise; else null
+ * (the whole window is used).
+ */
+export function locateNarrowResonance(
+  freqHz: ArrayLike<number>, wr: Float64Array, wi: Float64Array, noiseRms: number,
+  minLinewidths = 15, halfWidths = 6,
+): { lo: number; hi: number } | null {
+  const n = freqHz.length;
+  const pr = median(Float64Array.from(wr));
+  const pi = median(Float64Array.from(wi));
+  const d = new Float64Array(n);
+  for (let i = 0; i < n; i++) d[i] = Math.sqrt((wr[i] - pr) ** 2 + (wi[i] - pi) ** 2);
+  let peak = 1;
+  let best = -Infinity;
+  for (let i = 1; i < n - 1; i++) {
+    const s = d[i - 1] + d[i] + d[i + 1];
+    if (s > best) {
+      best = s;
+      peak = i;
+    }
+  }
+  const top = best / 3;
+  if (!(top > 3 * noiseRms) || peak < 2 || peak > n - 3) return null;
+  const half = 0.5 * top;
+  // Walk outward until two consecutive points fall below half maximum.
+  let a = peak;
+  while (a > 1 && !(d[a - 1] < half && d[a - 2] < half)) a--;
+  let b = peak;
+  while (b < n - 2 && !(d[b + 1] < half && d[b + 2] < half)) b++;
+  if (a <= 1 || b >= n - 2) return null;
+  const fwhm = freqHz[b] - freqHz[a];
+  const linewidth = Math.max(fwhm, freqHz[peak + 1] - freqHz[peak - 1]) / Math.sqrt(3);
+  const span = freqHz[n - 1] - freqHz[0];
+  if (!(span > minLinewidths * linewidth)) return null;
+  const fLo = freqHz[peak] - halfWidths * linewidth;
+  const fHi = freqHz[peak] + halfWidths * linewidth;
+  let lo = 0;
+  while (lo < n - 1 && freqHz[lo] < fLo) lo++;
+  let hi = n;
+  while (hi > 1 && freqHz[hi - 1] > fHi) hi--;
+  // Keep enough points for the circle and phase fits.
+  const minPts = 40;
+  while (hi - lo < minPts && (lo > 0 || hi < n)) {
+    if (lo > 0) lo--;
+    if (hi < n) hi++;
+  }
+  return hi - lo >= minPts && hi - lo < n ? { lo, hi } : null;
 }
