@@ -7,9 +7,11 @@ const common = {
   moduleFileExtensions: ['ts', 'tsx', 'js', 'json'],
 };
 module.exports = {
+  // Jest 30 reads testTimeout from the top level only; browser and API tests need long ones.
+  testTimeout: 240000,
   projects: [
     { ...common, displayName: 'unit', testMatch: ['<rootDir>/tests/unit/**/*.test.ts'] },
-    { ...common, displayName: 'api', testMatch: ['<rootDir>/tests/api/**/*.test.ts'], testTimeout: 60000 },
-    { ...common, displayName: 'browser', testMatch: ['<rootDir>/tests/browser/**/*.test.ts'], testTimeout: 240000 },
+    { ...common, displayName: 'api', testMatch: ['<rootDir>/tests/api/**/*.test.ts'] },
+    { ...common, displayName: 'browser', testMatch: ['<rootDir>/tests/browser/**/*.test.ts'] },
   ],
 };

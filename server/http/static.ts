@@ -99,10 +99,13 @@ export function inlineScriptHashes(dir: string): () => string[] {
 }
 
 /** Static files, then the exported HTML for the route, then +not-found.html (404) or index.html. */
-export function staticSite(dir: string): RequestHandler {
+export function staticSite(staticDir: string): RequestHandler {
   const router = Router();
+  // sendFile needs an absolute path; a relative FW_STATIC_DIR is taken from the working directory.
+  const dir = path.resolve(staticDir);
   if (!existsSync(dir)) return router;
-  router.use(express.static(dir, { index: false, extensions: [], fallthrough: true, maxAge: 0 }));
+  // redirect: false — a route such as /devices has both devices.html and a devices/ folder.
+  router.use(express.static(dir, { index: false, extensions: [], fallthrough: true, maxAge: 0, redirect: false }));
   let routes = buildHtmlRoutes(dir);
   let builtAt = Date.now();
   router.use((req, res, next) => {
