@@ -108,6 +108,23 @@ describe('noisy traces: truth within the issue tolerances, and agreement with sc
   });
 });
 
+describe('special windows', () => {
+  it('narrow resonance in a wide window: algebraic steps run on a crop around it', () => {
+    const t = byName('notch_noisy_wide_window');
+    const e = get(t);
+    const [lo, hi] = e.initial!.window;
+    expect(hi - lo).toBeLessThan(t.n / 4);
+    const f = grid(t);
+    expect(f[lo]).toBeLessThan(t.truth.fr);
+    expect(f[hi - 1]).toBeGreaterThan(t.truth.fr);
+  });
+  it('resonance near the window edge: delay from the clean wing, full window used', () => {
+    const e = get(byName('refl_noisy_near_edge'));
+    expect(e.initial!.window).toEqual([0, 1001]);
+    expect(e.flag).toBeNull();
+  });
+});
+
 describe('flags: each failure fixture triggers its flag with a reason', () => {
   it('pure background + noise → no_resonance (χ² improvement below threshold), values null', () => {
     const e = get(byName('fail_no_resonance'));
