@@ -51,6 +51,10 @@ export function preflight(file: string, raw: string, log: IssueLog): string {
   const text = raw.charCodeAt(0) === 0xfeff ? raw.slice(1) : raw;
   if (text.trim() === '') log.fatal(null, null, 'the file is empty');
   if (text.startsWith('PK\u0003\u0004')) log.fatal(1, null, 'this is a ZIP archive (an .xlsx workbook?), not a text table; export the sheet as CSV');
+  // UTF-16 (spreadsheet "Unicode text" export) read as UTF-8: BOM bytes undecodable, NUL every other byte.
+  if (/^\ufffd\ufffd/.test(text) || (text.length > 3 && text.charCodeAt(1) === 0 && text.charCodeAt(3) === 0)) {
+    log.fatal(1, null, 'this looks like UTF-16 text; save the table as UTF-8 CSV');
+  }
   const m = BINARY.exec(text);
   if (m) {
     const code = m[0].charCodeAt(0);
