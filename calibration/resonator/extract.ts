@@ -85,6 +85,8 @@ export interface TraceExtraction {
   circle: { xc: number; yc: number; r: number } | null;
   flag: TraceFlag;
   reason: string | null;
+  /** true when the input was conjugated before fitting (counter-clockwise resonance circle). */
+  conjugated: boolean;
   /** Complex refinement: parameters a, alpha_ref (α at f_ref), tau, fr, ql, qc, phi (notch). */
   fit?: FitResult;
   /** Window centre that alpha_ref in `fit` refers to, Hz. */
@@ -96,6 +98,8 @@ export interface TraceExtraction {
     phaseFitIterations: number;
     /** Index range [lo, hi) the algebraic steps used (a crop around a narrow resonance, or all). */
     window: [number, number];
+    /** Net clockwise angle of the centred circle from first to last point, rad. */
+    phaseSweepRad: number;
   } | null;
   elapsedMs: number;
 }
@@ -189,7 +193,7 @@ function nullResult(geometry: ResonatorGeometry, fRef: number, noiseOff: number,
   return {
     geometry, frHz: null, frStderrHz: null, ql: null, qlStderr: null, qcAbs: null, qcStderr: null, phiRad: null,
     phiStderrRad: null, qi: null, qiStderr: null, a: null, alphaRad: null, delayS: null, delayStderrS: null, snr: null,
-    noiseRms: null, noiseRmsOffResonance: noiseOff, deltaChi2: null, circle: null, flag, reason, fRefHz: fRef,
+    noiseRms: null, noiseRmsOffResonance: noiseOff, deltaChi2: null, circle: null, flag, reason, conjugated: false, fRefHz: fRef,
     initial: null, elapsedMs: now() - t0,
   };
 }
@@ -212,6 +216,29 @@ export function extractResonance(
 ): TraceExtraction {
   const t0 = now();
   validateTrace(freqHz, re, im);
+  const first = extractCore(freqHz, re, im, opts, t0);
+  // A resonance circle turning counter-clockwise means the file uses the e^{−iωt} sign convention
+  // (S conjugated relative to a VNA's e^{+jωt}); fit the conjugate too and keep the better result.
+  if (first.initial && first.initial.phaseSweepRad < -1) {
+    const conjIm = Float64Array.from(im, (v) => -v);
+    const second = extractCore(freqHz, re, conjIm, opts, t0);
+    const rank = (e: TraceExtraction) => (e.flag === null ? 0 : e.flag === 'low_snr' ? 1 : 2);
+    const better = rank(second) < rank(first) || (rank(second) === rank(first) && (second.deltaChi2 ?? -Infinity) > (first.deltaChi2 ?? -Infinity));
+    if (better) {
+      second.conjugated = true;
+      if (second.reason === null) {
+        second.reason = 'phase turns counter-clockwise with frequency: the data were conjugated (e^{−iωt} sign convention) before fitting; α and φ refer to the conjugate';
+      }
+      second.elapsedMs = now() - t0;
+      return second;
+    }
+  }
+  return first;
+}
+
+function extractCore(
+  freqHz: ArrayLike<number>, re: ArrayLike<number>, im: ArrayLike<number>, opts: ExtractOptions, t0: number,
+): TraceExtraction {
   const geometry = opts.geometry;
   if (geometry !== 'notch' && geometry !== 'reflection') {
     throw new Error(`resonator: geometry must be 'notch' or 'reflection' (got ${String(geometry)})`);
@@ -262,16 +289,14 @@ export function extractResonance(
   }
 
   // 3. Angle about the centre.
-  const fp = fa;
-  const mp = m;
-  const { theta, guess } = centredPhase(fp, war, wai, circle);
+  const { theta, guess, sweep } = centredPhase(fa, war, wai, circle);
   const phaseFit = leastSquares(
     (p) => {
-      const out = new Float64Array(mp);
+      const out = new Float64Array(m);
       const th0 = p.theta0;
       const fr = p.fr;
       const ql = p.ql;
-      for (let i = 0; i < mp; i++) out[i] = wrapAngle(theta[i] - th0 - 2 * Math.atan(2 * ql * (1 - fp[i] / fr)));
+      for (let i = 0; i < m; i++) out[i] = wrapAngle(theta[i] - th0 - 2 * Math.atan(2 * ql * (1 - fa[i] / fr)));
       return out;
     },
     [
@@ -281,17 +306,17 @@ export function extractResonance(
     ],
     { maxIterations: 20, computeCovariance: false },
     (p, names) => {
-      const rows: number[][] = new Array(mp);
+      const rows: number[][] = new Array(m);
       const fr = p.fr;
       const ql = p.ql;
       const full = names.length === 3 && names[0] === 'theta0' && names[1] === 'fr' && names[2] === 'ql';
       const idx = names.map((nm) => ['theta0', 'fr', 'ql'].indexOf(nm));
-      for (let i = 0; i < mp; i++) {
-        const x = 1 - fp[i] / fr;
+      for (let i = 0; i < m; i++) {
+        const x = 1 - fa[i] / fr;
         const u = 2 * ql * x;
         const w = 2 / (1 + u * u);
         // residual = θ_i − model; d model/dθ0 = 1, d/dfr = w·2Q f/fr², d/dQ = w·2x.
-        const dF = (-w * 2 * ql * fp[i]) / (fr * fr);
+        const dF = (-w * 2 * ql * fa[i]) / (fr * fr);
         const dQ = -w * 2 * x;
         if (full) rows[i] = [-1, dF, dQ];
         else {
@@ -326,7 +351,7 @@ export function extractResonance(
   const initial = {
     frHz: frInit, ql: qlInit, qcAbs: qcInit, phiRad: phiInit, a: aInit,
     alphaRad: wrapAngle(alphaRefInit + 2 * Math.PI * fRef * tau), delayS: tau,
-    phaseFitIterations: phaseFit.iterations, window: [lo, hi] as [number, number],
+    phaseFitIterations: phaseFit.iterations, window: [lo, hi] as [number, number], phaseSweepRad: sweep,
   };
 
   // Noise off resonance: exclude ±5 linewidths around the first estimate.
@@ -406,9 +431,13 @@ export function extractResonance(
       dRe[4] = br * dsQr - bi * dsQi; dIm[4] = br * dsQi + bi * dsQr;
       dRe[5] = br * dsCr - bi * dsCi; dIm[5] = br * dsCi + bi * dsCr;
       dRe[6] = br * dsPr - bi * dsPi; dIm[6] = br * dsPi + bi * dsPr;
+      // Literal rows on the common paths (all parameters varying): far less allocation work.
       if (identity && col.length === 7) {
         rows[i] = [-dRe[0] * inv, -dRe[1] * inv, -dRe[2] * inv, -dRe[3] * inv, -dRe[4] * inv, -dRe[5] * inv, -dRe[6] * inv];
         rows[n + i] = [-dIm[0] * inv, -dIm[1] * inv, -dIm[2] * inv, -dIm[3] * inv, -dIm[4] * inv, -dIm[5] * inv, -dIm[6] * inv];
+      } else if (identity && col.length === 6) {
+        rows[i] = [-dRe[0] * inv, -dRe[1] * inv, -dRe[2] * inv, -dRe[3] * inv, -dRe[4] * inv, -dRe[5] * inv];
+        rows[n + i] = [-dIm[0] * inv, -dIm[1] * inv, -dIm[2] * inv, -dIm[3] * inv, -dIm[4] * inv, -dIm[5] * inv];
       } else {
         const rowR = new Array<number>(col.length);
         const rowI = new Array<number>(col.length);
@@ -605,6 +634,7 @@ export function extractResonance(
     },
     flag,
     reason,
+    conjugated: false,
     fit,
     fRefHz: fRef,
     initial,

@@ -292,11 +292,12 @@ export interface PhaseGuess {
  * Angle of the delay-corrected data seen from the circle centre, θ_i = arg(w_i − c), and initial
  * guesses for θ(f) = θ0 + 2·arctan(2Q_l(1 − f/f_r)) (Probst et al. 2015): θ decreases through
  * the resonance, θ0 is midway between the wing angles, f_r is where θ crosses θ0 and Q_l follows
- * from the frequencies where θ crosses θ0 ± q: f_hi − f_lo = tan(q/2)·f_r/Q_l.
+ * from the frequencies where θ crosses θ0 ± q: f_hi − f_lo = tan(q/2)·f_r/Q_l. `sweep` is the
+ * net angle turned from the first to the last point (positive = clockwise, the e^{+jωt} convention).
  */
 export function centredPhase(
   freqHz: ArrayLike<number>, wr: Float64Array, wi: Float64Array, circle: CircleFit,
-): { theta: Float64Array; guess: PhaseGuess } {
+): { theta: Float64Array; guess: PhaseGuess; sweep: number } {
   const n = freqHz.length;
   const theta = new Float64Array(n);
   for (let i = 0; i < n; i++) theta[i] = Math.atan2(wi[i] - circle.yc, wr[i] - circle.xc);
@@ -360,7 +361,7 @@ export function centredPhase(
     if (fLo !== null && fHi !== null && fHi > fLo) ql = (Math.tan(q / 2) * fr) / (fHi - fLo);
   }
   if (!Number.isFinite(ql) || ql <= 0) ql = fr / (span / 4);
-  return { theta, guess: { theta0: wrapAngle(theta0), frHz: fr, ql } };
+  return { theta, guess: { theta0: wrapAngle(theta0), frHz: fr, ql }, sweep };
 }
 
 /** Wraps an angle into (−π, π]. */

@@ -176,6 +176,22 @@ describe('options and input checks', () => {
     expect(Math.abs((e.frHz as number) - t.truth.fr)).toBeLessThan(t.truth.fr / t.truth.ql / 10);
     expect(rel(e.ql, t.truth.ql)).toBeLessThan(0.05);
   });
+  it('data in the e^{−iωt} convention (conjugated) are detected and fitted as their conjugate', () => {
+    // Conjugating S flips the circle's sense of rotation; conjugating back restores the VNA form
+    // of Probst et al. (2015), so the result must equal that of the original trace.
+    for (const name of ['notch_noisy_snr20_phi_neg', 'refl_noisy_snr15_over']) {
+      const t = byName(name);
+      const e0 = get(t);
+      const e = extractResonance(grid(t), t.re, t.im.map((v) => -v), { geometry: t.geometry });
+      expect(e0.conjugated).toBe(false);
+      expect(e.conjugated).toBe(true);
+      expect(e.flag).toBeNull();
+      expect(e.reason).toMatch(/conjugated/);
+      expect(rel(e.frHz, e0.frHz as number)).toBeLessThan(1e-12);
+      expect(rel(e.ql, e0.ql as number)).toBeLessThan(1e-9);
+      expect(rel(e.qcAbs, e0.qcAbs as number)).toBeLessThan(1e-9);
+    }
+  });
   it('bad input throws naming what and where', () => {
     const t = byName('notch_clean_under');
     const f = grid(t);
