@@ -61,11 +61,27 @@ function readInputs(paths: string[]): SweepFile[] {
   return files;
 }
 
+/** node:util parseArgs reads `--opt -5` as two options; lab scripts pass negative values that way. */
+function joinNegativeValues(argv: string[], valued: Set<string>): string[] {
+  const out: string[] = [];
+  for (let i = 0; i < argv.length; i++) {
+    const a = argv[i];
+    const next = argv[i + 1];
+    if (a.startsWith('--') && valued.has(a.slice(2)) && next !== undefined && /^-(\d|\.\d)/.test(next)) {
+      out.push(`${a}=${next}`);
+      i++;
+    } else out.push(a);
+  }
+  return out;
+}
+
+const VALUED = new Set(['model', 'z0', 'kind', 'geometry', 'probe-frequency', 'loop-inductance', 'loss', 'bias-pattern', 'bias-unit', 'cable-delay', 'phase-velocity']);
+
 export function runFit(argv: string[]): CommandOutput {
   let parsed;
   try {
     parsed = parseArgs({
-      args: argv,
+      args: joinNegativeValues(argv, VALUED),
       allowPositionals: true,
       options: {
         model: { type: 'string' },
