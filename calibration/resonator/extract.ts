@@ -14,6 +14,18 @@
  * Internally the delay is referenced to the window centre f_ref (phase a·e^{iα_ref}·e^{−2πi(f−f_ref)τ}),
  * which removes the near-total α–τ correlation of the absolute-frequency form; α is converted back to
  * the absolute convention of models.ts on output.
+ *
+ * Additions to the published procedure, each for a failure seen on synthetic sweeps:
+ *  - delay candidates from each wing as well as both together, the most circular one wins (a
+ *    resonance near one edge spoils that wing's slope);
+ *  - a resonance narrow compared with the window (one wide window over a whole flux sweep) is
+ *    located from |S − P| and the algebraic steps run on ±6 linewidths around it;
+ *  - the refinement runs in two stages and is skipped when nothing significant was found, so
+ *    empty traces cost little; a counter-clockwise circle (e^{−iωt} files) is fitted conjugated.
+ * Flags (checked in this order): no_resonance (f_r outside the window, fewer than 2 linewidths in
+ * the window or 2 steps per linewidth, or Δχ² over a flat background below minDeltaChi2) → values
+ * null; fit_failed (no convergence, non-finite values) → values null; low_snr (diameter/noise rms
+ * below minSnr) → values kept.
  */
 import { leastSquares } from '../fit/leastsq';
 import type { FitResult, ParameterSpec } from '../fit/types';

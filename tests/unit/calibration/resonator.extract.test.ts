@@ -192,6 +192,20 @@ describe('options and input checks', () => {
       expect(rel(e.qcAbs, e0.qcAbs as number)).toBeLessThan(1e-9);
     }
   });
+  it('non-uniform frequency grid (no recurrence shortcut) recovers a clean notch', () => {
+    // notchResponse is checked against numpy in resonator.models.test.ts; truth is its input.
+    const truth = { a: 0.8, alphaRad: -0.6, delayS: 64e-9, frHz: 6.02e9, ql: 1.5e4, qcAbs: 2.2e4, phiRad: 0.15 };
+    const lw = truth.frHz / truth.ql;
+    const f = Array.from({ length: 800 }, (_, i) => truth.frHz - 4 * lw + 9 * lw * (i / 799) ** 1.3);
+    const z = notchResponse(f, truth);
+    const e = extractResonance(f, z.re, z.im, { geometry: 'notch' });
+    expect(e.flag).toBeNull();
+    expect(rel(e.frHz, truth.frHz)).toBeLessThan(1e-9);
+    expect(rel(e.ql, truth.ql)).toBeLessThan(1e-6);
+    expect(rel(e.qcAbs, truth.qcAbs)).toBeLessThan(1e-6);
+    expect(angleDiff(e.phiRad as number, truth.phiRad)).toBeLessThan(1e-6);
+    expect(rel(e.delayS, truth.delayS)).toBeLessThan(1e-6);
+  });
   it('bad input throws naming what and where', () => {
     const t = byName('notch_clean_under');
     const f = grid(t);
