@@ -10,7 +10,7 @@ import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { runFit } from '../../../calibration/cli/fit';
-import type { CalibrationJson } from '../../../calibration/contract';
+import type { CalibrationJson, ValueWithError } from '../../../calibration/contract';
 
 const DIR = join(__dirname, '../../fixtures/cli');
 const truth = JSON.parse(readFileSync(join(DIR, 'truth.json'), 'utf8')).files;
@@ -38,7 +38,7 @@ describe('cli fit --json on reference sweeps (truth from make_cli_fixtures.py)',
     expect(typeof c.message).toBe('string');
     for (const k of ['redchi', 'aic', 'bic', 'ndata'] as const) expect(Number.isFinite(c[k])).toBe(true);
     expect(Array.isArray(c.outliers)).toBe(true);
-    const p = c.params;
+    const p = c.params as Record<string, ValueWithError>;
     for (const k of ['f0_hz', 'gamma0', 'asymmetry', 'flux_period', 'flux_offset']) {
       expect(Number.isFinite(p[k].value)).toBe(true);
       expect(p[k].stderr === null || p[k].stderr > 0).toBe(true);
