@@ -9,6 +9,7 @@ import { deviceRoutes } from './features/devices/routes';
 import { invitationRoutes, publicInvitationRoutes } from './features/invitations/routes';
 import { outboxRoutes } from './features/outbox/routes';
 import { tokenRoutes } from './features/tokens/routes';
+import { traceRoutes } from './features/traces/routes';
 import { userRoutes } from './features/users/routes';
 import { apiNotFound, errorMiddleware } from './http/errors';
 import { inlineScriptHashes, staticSite } from './http/static';
@@ -67,6 +68,7 @@ export function createApp(deps: AppDeps, opts: CreateAppOptions = {}): Express {
     auditRoutes,
     batchRoutes,
     deviceRoutes,
+    traceRoutes,
   ]) {
     api.use(routes(rd));
   }
