@@ -38,7 +38,7 @@ function TraceCharts({ t, wide }: { t: TraceView; wide: boolean }) {
         <Text variant="monoSmall" style={{ alignSelf: 'flex-start' }}>
           complex plane (cable delay removed)
         </Text>
-        <IqPlaneLazy size={iqSize} data={{ re: t.re, im: t.im }} model={t.model} circle={t.circle} />
+        <IqPlaneLazy size={iqSize} data={{ re: t.delayRemoved.re, im: t.delayRemoved.im }} model={t.delayRemoved.model} circle={t.circle} />
       </View>
     </View>
   );

@@ -9,34 +9,11 @@ import type {
   ReviewRequest,
   UploadResponse,
 } from '@/shared/api/calibration';
+import type { TraceView, TraceViewResponse } from '@/shared/api/traces';
 import { apiBaseUrl, http } from '../api/http';
 import { devicesKeys } from './devices';
 
-/** GET /api/fits/:id/traces/:index (server/features/traces): one raw trace with its fitted model. */
-export interface TraceView {
-  index: number;
-  bias: number;
-  biasUnit: string;
-  geometry: 'notch' | 'reflection';
-  freqHz: number[];
-  re: number[];
-  im: number[];
-  /** Fitted response on the same frequencies; null when the trace gave no resonance. */
-  model: { re: number[]; im: number[] } | null;
-  /** Resonance circle in the delay-removed frame (the frame re/im are given in). */
-  circle: { xc: number; yc: number; r: number } | null;
-  extraction: {
-    frHz: number | null;
-    ql: number | null;
-    qcAbs: number | null;
-    qi: number | null;
-    phiRad: number | null;
-    delayS: number | null;
-    snr: number | null;
-    flag: string | null;
-    reason: string | null;
-  };
-}
+export type { TraceView };
 
 const isId = (id: number | undefined | null): id is number => typeof id === 'number' && Number.isInteger(id) && id > 0;
 
@@ -69,7 +46,7 @@ export function useFit(id: number | undefined) {
 export function useFitTrace(id: number | undefined, index: number | null) {
   return useQuery({
     queryKey: fitsKeys.trace(id ?? -1, index ?? -1),
-    queryFn: ({ signal }) => http.get<{ trace: TraceView }>(`/api/fits/${id}/traces/${index}`, undefined, { signal }).then((r) => r.trace),
+    queryFn: ({ signal }) => http.get<TraceViewResponse>(`/api/fits/${id}/traces/${index}`, undefined, { signal }).then((r) => r.trace),
     enabled: isId(id) && index !== null && index >= 0,
     staleTime: Infinity, // computed from immutable stored bytes
   });
