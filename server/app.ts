@@ -5,6 +5,7 @@ import type { AppDeps, RouteDeps } from './deps';
 import { auditRoutes } from './features/audit/routes';
 import { authRoutes, publicAuthRoutes } from './features/auth/routes';
 import { batchRoutes } from './features/batches/routes';
+import { calibrationRoutes } from './features/calibration/routes';
 import { deviceRoutes } from './features/devices/routes';
 import { invitationRoutes, publicInvitationRoutes } from './features/invitations/routes';
 import { outboxRoutes } from './features/outbox/routes';
@@ -13,6 +14,7 @@ import { traceRoutes } from './features/traces/routes';
 import { userRoutes } from './features/users/routes';
 import { apiNotFound, errorMiddleware } from './http/errors';
 import { inlineScriptHashes, staticSite } from './http/static';
+import { JobRunner } from './jobs/runner';
 
 export type { AppDeps } from './deps';
 
@@ -56,7 +58,11 @@ export function createApp(deps: AppDeps, opts: CreateAppOptions = {}): Express {
     res.json({ ok: true, version: config.version });
   });
   // Each signed-in route carries guard(...roles) itself, so an unknown path is a 404, not a 401.
-  const rd: RouteDeps = { ...deps, guard: guardFactory(dataSource, config.jwtSecret) };
+  // Fit jobs run on worker threads; the pool starts on first use. Callers that created the app
+  // stop it with app.locals.jobs.close() (main.ts on shutdown, tests in afterAll).
+  const jobs = deps.jobs ?? new JobRunner({ dataSource, mailer: deps.mailer, config, log: deps.log });
+  app.locals.jobs = jobs;
+  const rd: RouteDeps = { ...deps, jobs, guard: guardFactory(dataSource, config.jwtSecret) };
   for (const routes of [
     publicAuthRoutes,
     publicInvitationRoutes,
@@ -69,6 +75,7 @@ export function createApp(deps: AppDeps, opts: CreateAppOptions = {}): Express {
     batchRoutes,
     deviceRoutes,
     traceRoutes,
+    calibrationRoutes,
   ]) {
     api.use(routes(rd));
   }

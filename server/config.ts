@@ -1,4 +1,5 @@
 import { randomBytes } from 'node:crypto';
+import { availableParallelism } from 'node:os';
 import { chmodSync, existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 
@@ -46,6 +47,12 @@ export interface Config {
   db: DbConfig;
   invitationTtlMs: number;
   passwordResetTtlMs: number;
+  /** Largest sweep upload (each file and the whole set), MB (FW_UPLOAD_LIMIT_MB). */
+  uploadLimitMb: number;
+  /** Worker threads for parsing and fitting (FW_WORKERS; default min(2, cores)). */
+  workers: number;
+  /** How long an upload or refit request waits for its fit before answering 202, ms. */
+  fitWaitMs: number;
 }
 
 type Env = Record<string, string | undefined>;
@@ -131,5 +138,8 @@ export function loadConfig(env: Env = process.env): Config {
     },
     invitationTtlMs: 7 * 24 * 3600 * 1000,
     passwordResetTtlMs: 3600 * 1000,
+    uploadLimitMb: int(env, 'FW_UPLOAD_LIMIT_MB', 60),
+    workers: Math.max(1, int(env, 'FW_WORKERS', Math.min(2, availableParallelism()))),
+    fitWaitMs: int(env, 'FW_FIT_WAIT_MS', 1500),
   };
 }

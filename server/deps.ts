@@ -1,5 +1,6 @@
 import type { DataSource } from 'typeorm';
 import type { Config } from './config';
+import type { JobRunner } from './jobs/runner';
 import type { Mailer } from './mail/mailer';
 
 /** What createApp needs from the outside; tests pass their own. */
@@ -8,6 +9,8 @@ export interface AppDeps {
   mailer: Mailer;
   config: Config;
   log?: (msg: string, err?: unknown) => void;
+  /** Calibration job runner; createApp makes one when absent (reachable as app.locals.jobs). */
+  jobs?: JobRunner;
 }
 
 import type { RequestHandler } from 'express';
@@ -16,4 +19,5 @@ import type { Role } from '@/shared/api/common';
 /** Routers get the deps plus guard(...roles): authentication, then the role check, on each route. */
 export interface RouteDeps extends AppDeps {
   guard: (...roles: Role[]) => RequestHandler;
+  jobs: JobRunner;
 }

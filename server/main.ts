@@ -8,6 +8,7 @@ import { createDataSource } from './db/dataSource';
 import { DEMO_LAB_NAME, DEMO_USERS, seedDemo } from './db/seed';
 import { startFakeSmtp, type FakeSmtp } from './mail/fakeSmtp';
 import { createSmtpMailer } from './mail/mailer';
+import { JobRunner } from './jobs/runner';
 
 function flag(name: string, fallback: boolean): boolean {
   const v = process.env[name];
@@ -37,7 +38,8 @@ async function main() {
   }
   const mailer = createSmtpMailer(config);
   if (!existsSync(staticDir)) console.warn(`[web] ${staticDir} missing: serving the API only (build with npm run web:export)`);
-  const app = createApp({ dataSource, mailer, config }, { staticDir: existsSync(staticDir) ? staticDir : undefined });
+  const jobs = new JobRunner({ dataSource, mailer, config });
+  const app = createApp({ dataSource, mailer, config, jobs }, { staticDir: existsSync(staticDir) ? staticDir : undefined });
 
   const server = app.listen(config.port, config.host, () => {
     console.log(`\nFluxwright ${config.version} on http://${config.host}:${config.port}`);
@@ -47,6 +49,10 @@ async function main() {
     }
     if (config.demoOutbox) console.log('Outbox (caught e-mail) is visible to the lab lead.');
   });
+  // Fits a stopped server left queued or running start again (the sweeps' bytes are stored).
+  const resumed = await jobs.resume();
+  if (resumed.length) console.log(`[jobs] resumed ${resumed.length} fit job(s): ${resumed.join(', ')}`);
+  jobs.warm();
   server.on('error', (e) => {
     console.error(`[http] cannot listen on ${config.host}:${config.port}: ${e.message}`);
     process.exit(1);
@@ -54,6 +60,7 @@ async function main() {
 
   const shutdown = async () => {
     server.close();
+    await jobs.close();
     await smtp?.close();
     await mailer.close();
     await dataSource.destroy();

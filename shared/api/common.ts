@@ -14,6 +14,11 @@ export const ERROR_CODES = [
   'PAYLOAD_TOO_LARGE',
   'RATE_LIMITED',
   'INTERNAL',
+  // Calibration routes (shared/api/calibration.ts): a sweep file the parser refuses (details.issues
+  // with file/row/column), a device without an accepted fit, two fits with no parameter in common.
+  'SWEEP_INVALID',
+  'NO_ACTIVE_CALIBRATION',
+  'NOT_COMPARABLE',
 ] as const;
 export type ErrorCode = (typeof ERROR_CODES)[number];
 

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import type { ActiveCalibrationSummary } from './calibration';
 import { calendarDateSchema } from './common';
 
 /** quarter_wave: λ/4 resonator shorted by the SQUID; phase_only: long line used as a tunable phase element. */
@@ -48,7 +49,10 @@ export interface Device {
   designZ0Ohm: number | null;
   designFrequencyHz: number | null;
   loopInductanceH: number | null;
+  /** From the device's fits: 'accepted' when one is active, else 'proposed' when one waits for review. */
   calibrationStatus: CalibrationStatus;
+  /** The accepted fit in brief; the full JSON is GET /api/devices/:id/calibration. */
+  activeCalibration: ActiveCalibrationSummary | null;
 }
 
 export const createCooldownSchema = z.object({

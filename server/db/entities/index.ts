@@ -8,16 +8,22 @@ export * from './FabBatch';
 export * from './Device';
 export * from './Cooldown';
 export * from './MailMessage';
+export * from './Sweep';
+export * from './Fit';
+export * from './Job';
 
 import { ApiTokenEntity } from './ApiToken';
 import { AuditEventEntity } from './AuditEvent';
 import { CooldownEntity } from './Cooldown';
 import { DeviceEntity } from './Device';
 import { FabBatchEntity } from './FabBatch';
+import { FitEntity } from './Fit';
 import { InvitationEntity } from './Invitation';
+import { JobEntity } from './Job';
 import { LabEntity } from './Lab';
 import { MailMessageEntity } from './MailMessage';
 import { PasswordResetEntity } from './PasswordReset';
+import { SweepEntity, SweepFileEntity } from './Sweep';
 import { UserEntity } from './User';
 
 export const ENTITIES = [
@@ -31,4 +37,8 @@ export const ENTITIES = [
   DeviceEntity,
   CooldownEntity,
   MailMessageEntity,
+  SweepEntity,
+  SweepFileEntity,
+  FitEntity,
+  JobEntity,
 ];

@@ -1,12 +1,24 @@
-import type { DataSource } from 'typeorm';
+import type { DataSource, EntityManager } from 'typeorm';
 import type { Cooldown, CreateCooldownRequest, CreateDeviceRequest, Device, DeviceListQuery } from '@/shared/api/devices';
 import { CooldownEntity, DeviceEntity, type CooldownRow, type UserRow } from '../../db/entities';
 import { AppError, isDuplicateKey } from '../../http/errors';
 import { recordAudit } from '../audit/service';
 import { findBatchInLab } from '../batches/repository';
+import { toActiveSummary } from '../calibration/json';
+import { calibrationStateOfLab, usersById, type ActiveFitRow } from '../calibration/repository';
 import { findDevices, listCooldowns, type DeviceFilter, type DeviceWithBatch } from './repository';
 
-export function toDeviceJson(d: DeviceWithBatch): Device {
+type CalibrationState = Map<number, { accepted: ActiveFitRow | null; proposed: boolean }>;
+
+/** Device JSON with its calibration status from the fits (state from calibrationStateOfLab). */
+async function devicesJson(em: EntityManager, labId: number, rows: DeviceWithBatch[]): Promise<Device[]> {
+  const state: CalibrationState = rows.length ? await calibrationStateOfLab(em, labId, rows.map((d) => d.id)) : new Map();
+  const users = await usersById(em, [...state.values()].map((s) => s.accepted?.reviewedById));
+  return rows.map((d) => toDeviceJson(d, state, users));
+}
+
+export function toDeviceJson(d: DeviceWithBatch, state: CalibrationState = new Map(), users: Map<number, UserRow> = new Map()): Device {
+  const s = state.get(d.id);
   return {
     id: d.id,
     name: d.name,
@@ -17,8 +29,8 @@ export function toDeviceJson(d: DeviceWithBatch): Device {
     designZ0Ohm: d.designZ0Ohm,
     designFrequencyHz: d.designFrequencyHz,
     loopInductanceH: d.loopInductanceH,
-    // No calibration records exist yet (later issue); every device starts uncalibrated.
-    calibrationStatus: 'none',
+    calibrationStatus: s?.accepted ? 'accepted' : s?.proposed ? 'proposed' : 'none',
+    activeCalibration: s?.accepted ? toActiveSummary(s.accepted, users) : null,
   };
 }
 
@@ -39,13 +51,14 @@ export async function listDevices(ds: DataSource, labId: number, q: DeviceListQu
     if (/^\d+$/.test(q.batch)) f.batchId = Number(q.batch);
     else f.batchCode = q.batch;
   }
-  return (await findDevices(ds.manager, labId, f)).map(toDeviceJson);
+  return devicesJson(ds.manager, labId, await findDevices(ds.manager, labId, f));
 }
 
 export async function getDevice(ds: DataSource, labId: number, id: number): Promise<{ device: Device; cooldowns: Cooldown[] }> {
   const [d] = await findDevices(ds.manager, labId, { id });
   if (!d) throw AppError.notFound(`no device ${id} in your lab`);
-  return { device: toDeviceJson(d), cooldowns: (await listCooldowns(ds.manager, d.id)).map(toCooldownJson) };
+  const [device] = await devicesJson(ds.manager, labId, [d]);
+  return { device, cooldowns: (await listCooldowns(ds.manager, d.id)).map(toCooldownJson) };
 }
 
 const duplicate = (name: string) =>

@@ -1,0 +1,178 @@
+/**
+ * Worker-thread side of the calibration jobs (loaded by worker.cjs under tsx's require hook, so the
+ * same file runs under `npm start` and under Jest). Raw bytes come in, plain JSON goes out; errors
+ * are returned as values so their file/row/column issues survive the thread boundary intact.
+ * Relative imports only: the worker resolves modules without the @/ alias.
+ */
+import type { MessagePort } from 'node:worker_threads';
+import type { CalibrationJson } from '../../calibration/contract';
+import { CalibrationRequestError, calibrateSweepData, extractionOptions, parseSweepFiles, type CalibrateOptions, type SweepFile } from '../../calibration/pipeline';
+import { SweepParseError, type SweepData, type TuningPointsData } from '../../calibration/io';
+import { extractSweep, type SweepExtraction, type SweepSummary } from '../../calibration/resonator';
+import type { ParseSummary, SweepIssue } from '../../shared/api/calibration';
+
+export interface WorkerFile {
+  name: string;
+  bytes: Uint8Array;
+}
+
+export interface WorkerError {
+  /** parse: the file cannot be read (issues say where); request: the core cannot act on the options; internal: anything else. */
+  kind: 'parse' | 'request' | 'internal';
+  message: string;
+  issues: SweepIssue[];
+}
+
+export type WorkerResult<T> = { ok: true; value: T } | { ok: false; error: WorkerError };
+
+export interface ParseTask {
+  files: WorkerFile[];
+  opts: CalibrateOptions;
+}
+
+export interface CalibrateTask extends ParseTask {
+  /** Receives { progress, message } while the job runs. */
+  port?: MessagePort;
+}
+
+export interface ProgressMessage {
+  progress: number;
+  message: string;
+}
+
+const MAX_SUMMARY_WARNINGS = 50;
+
+function decode(files: WorkerFile[]): SweepFile[] {
+  // TextDecoder drops a UTF-8 byte-order mark; invalid bytes become U+FFFD, which the parser reports by cell.
+  const dec = new TextDecoder('utf-8');
+  return files.map((f) => ({ name: f.name, text: dec.decode(f.bytes) }));
+}
+
+function toWorkerError(e: unknown): WorkerError {
+  if (e instanceof SweepParseError) {
+    return {
+      kind: 'parse',
+      message: e.message,
+      issues: e.issues.map((i) => ({ severity: i.severity, file: i.file, row: i.row, column: i.column, message: i.message })),
+    };
+  }
+  if (e instanceof CalibrationRequestError) return { kind: 'request', message: e.message, issues: [] };
+  const err = e as Error;
+  // The core's own input errors (TuningInputError, bad trace input, …) carry a located message too.
+  const named = err && typeof err.name === 'string' && /Error$/.test(err.name) && err.name !== 'Error' && err.name !== 'TypeError' && err.name !== 'RangeError';
+  return { kind: named ? 'request' : 'internal', message: err?.message ?? String(e), issues: [] };
+}
+
+function range(xs: Iterable<number>): [number, number] | null {
+  let lo = Infinity;
+  let hi = -Infinity;
+  for (const x of xs) {
+    if (x < lo) lo = x;
+    if (x > hi) hi = x;
+  }
+  return lo <= hi ? [lo, hi] : null;
+}
+
+export function summarise(data: SweepData): ParseSummary {
+  const base = {
+    kind: data.kind,
+    biasUnit: data.biasUnit,
+    biasQuantity: data.biasQuantity,
+    warnings: data.issues.filter((i) => i.severity === 'warning').slice(0, MAX_SUMMARY_WARNINGS).map((i) => i.message),
+  };
+  if (data.kind === 'raw_complex' || data.kind === 'touchstone') {
+    const lengths = data.traces.map((t) => t.freqHz.length);
+    return {
+      ...base,
+      points: data.traces.length,
+      freqPointsPerTrace: range(lengths),
+      biasRange: range(data.traces.map((t) => t.bias)),
+      frequencyRangeHz: range(data.traces.flatMap((t) => (t.freqHz.length ? [t.freqHz[0], t.freqHz[t.freqHz.length - 1]] : []))),
+      geometry: data.geometry,
+      sparam: data.sparam,
+      probeFrequencyHz: null,
+    };
+  }
+  if (data.kind === 'phase_flux') {
+    return {
+      ...base,
+      points: data.points.length,
+      freqPointsPerTrace: null,
+      biasRange: range(data.points.map((p) => p.bias)),
+      frequencyRangeHz: null,
+      geometry: null,
+      sparam: null,
+      probeFrequencyHz: data.probeFrequencyHz,
+    };
+  }
+  const tuning = data as TuningPointsData;
+  return {
+    ...base,
+    points: tuning.points.length,
+    freqPointsPerTrace: null,
+    biasRange: range(tuning.points.map((p) => p.bias)),
+    frequencyRangeHz: range(tuning.points.map((p) => p.frHz)),
+    geometry: null,
+    sparam: null,
+    probeFrequencyHz: null,
+  };
+}
+
+/** Parse only: the upload awaits this so a bad file is refused before anything is stored. */
+export function parse(task: ParseTask): WorkerResult<ParseSummary> {
+  try {
+    return { ok: true, value: summarise(parseSweepFiles(decode(task.files), task.opts)) };
+  } catch (e) {
+    return { ok: false, error: toWorkerError(e) };
+  }
+}
+
+function mergeSummaries(parts: SweepSummary[]): SweepSummary {
+  const total = parts.reduce((s, p) => s + p.total, 0);
+  return {
+    total,
+    good: parts.reduce((s, p) => s + p.good, 0),
+    noResonance: parts.reduce((s, p) => s + p.noResonance, 0),
+    lowSnr: parts.reduce((s, p) => s + p.lowSnr, 0),
+    fitFailed: parts.reduce((s, p) => s + p.fitFailed, 0),
+    msPerTrace: total ? parts.reduce((s, p) => s + p.msPerTrace * p.total, 0) / total : 0,
+    flagged: parts.flatMap((p) => p.flagged),
+  };
+}
+
+/** Parse, per-trace extraction (in chunks, reporting progress), tuning or phase fit. */
+export function calibrate(task: CalibrateTask): WorkerResult<CalibrationJson> {
+  const say = (progress: number, message: string) => task.port?.postMessage({ progress, message } satisfies ProgressMessage);
+  try {
+    const data = parseSweepFiles(decode(task.files), task.opts);
+    if (data.kind === 'tuning_points' || data.kind === 'phase_flux') {
+      say(0.3, `parsed ${data.points.length} points; fitting`);
+      const json = calibrateSweepData(data, task.opts);
+      say(0.95, 'fit done');
+      return { ok: true, value: json };
+    }
+    const n = data.traces.length;
+    say(0.15, `parsed ${n} traces; extracting resonances`);
+    // Traces are independent: extracting them in chunks gives the same result as one call.
+    const xopts = extractionOptions(data, task.opts);
+    const chunk = Math.max(5, Math.ceil(n / 20));
+    const parts: SweepExtraction[] = [];
+    for (let i = 0; i < n; i += chunk) {
+      parts.push(extractSweep(data.traces.slice(i, i + chunk), xopts));
+      const done = Math.min(n, i + chunk);
+      say(0.15 + 0.75 * (done / n), `extracted ${done} of ${n} traces`);
+    }
+    const extraction: SweepExtraction = {
+      traces: parts.flatMap((p) => p.traces),
+      results: parts.flatMap((p) => p.results),
+      summary: mergeSummaries(parts.map((p) => p.summary)),
+    };
+    const json = calibrateSweepData(data, task.opts, extraction);
+    say(0.95, 'fit done');
+    return { ok: true, value: json };
+  } catch (e) {
+    return { ok: false, error: toWorkerError(e) };
+  } finally {
+    task.port?.close();
+  }
+}
