@@ -310,6 +310,12 @@ export async function reviewFit(d: CalibrationDeps, actor: UserRow, fitId: numbe
     if (state.status !== 'proposed') {
       throw AppError.conflict(`fit v${found.version} is ${state.status}; only a proposed fit can be reviewed`, { status: state.status });
     }
+    if (req.decision === 'accept' && !found.success) {
+      throw AppError.conflict(
+        `fit v${found.version} did not converge (${found.calibration.message}); refit it with other options or reject it`,
+        { status: state.status, success: false },
+      );
+    }
     let replaced: number[] = [];
     if (req.decision === 'accept') {
       const prev = (await em.query("SELECT `id` FROM `fit` WHERE `deviceId` = ? AND `status` = 'accepted' FOR UPDATE", [found.deviceId])) as Array<{ id: number }>;
