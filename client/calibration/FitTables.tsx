@@ -17,36 +17,31 @@ export function ParamTable({ cal }: { cal: CalibrationJson }) {
   const names = orderedNames(Object.keys(cal.params));
   return (
     <Card title="Parameters" testID="param-table">
-      <View style={[s.row, s.headRow]}>
-        <Text variant="caption" style={s.cName}>parameter</Text>
-        <Text variant="caption" style={s.cValue}>value ± std. error</Text>
-        <Text variant="caption" style={s.cRel}>rel.</Text>
-      </View>
       {names.map((n) => {
         const p = cal.params[n];
         const d = paramDisplay(n, cal.bias_unit);
         const rel = p.vary === false ? null : relativeError(p.value, p.stderr);
         return (
+          // Name line above the value line: the value ± error keeps a whole line on a phone.
           <View key={n} style={s.row} testID={`param-${n}`}>
-            <View style={s.cName}>
+            <View style={s.nameLine}>
               <Text style={{ fontFamily: fonts.sansMedium }}>{d.short}</Text>
-              <Text variant="caption" numberOfLines={2}>
+              <Text variant="caption" style={{ flex: 1 }} numberOfLines={1}>
                 {d.label}
               </Text>
-            </View>
-            <View style={s.cValue}>
-              <Text variant="mono" testID={`param-${n}-value`}>
-                {withError(p.value, p.vary === false ? null : p.stderr, d.scale)}
-                {d.unit ? ` ${d.unit}` : ''}
+              <Text variant="monoSmall" aria-label="relative error">
+                {p.vary === false ? 'fixed' : rel === null ? '—' : `${rel < 0.01 ? rel.toExponential(0) : fmtSig(rel, 2)} %`}
               </Text>
-              {p.vary === false ? <Text variant="caption">held fixed</Text> : p.stderr === null ? <Text variant="caption">error not estimable</Text> : null}
             </View>
-            <Text variant="monoSmall" style={s.cRel}>
-              {rel === null ? '—' : `${rel < 0.01 ? rel.toExponential(0) : fmtSig(rel, 2)} %`}
+            <Text variant="mono" testID={`param-${n}-value`}>
+              {withError(p.value, p.vary === false ? null : p.stderr, d.scale)}
+              {d.unit ? ` ${d.unit}` : ''}
             </Text>
+            {p.vary !== false && p.stderr === null ? <Text variant="caption">error not estimable</Text> : null}
           </View>
         );
       })}
+      <Text variant="caption">Value ± one standard error; the right column is the relative error.</Text>
       {Object.keys(cal.fixed ?? {}).length ? (
         <Text variant="caption">
           Given: {Object.entries(cal.fixed).map(([k, v]) => `${k} = ${v === null ? '—' : fmtSig(v, 5)}`).join(' · ')}
@@ -147,11 +142,8 @@ export function WarningsCard({ warnings }: { warnings: string[] }) {
 }
 
 const s = StyleSheet.create({
-  row: { flexDirection: 'row', alignItems: 'flex-start', gap: space.sm, paddingVertical: space.xs, borderTopWidth: 1, borderTopColor: colors.rule },
-  headRow: { borderTopWidth: 0, paddingVertical: 0 },
-  cName: { width: 96, flexShrink: 0 },
-  cValue: { flex: 1, minWidth: 0 },
-  cRel: { width: 56, textAlign: 'right', flexShrink: 0 },
+  row: { gap: 2, paddingVertical: space.sm, borderTopWidth: 1, borderTopColor: colors.rule },
+  nameLine: { flexDirection: 'row', alignItems: 'baseline', gap: space.sm },
   mRow: { flexDirection: 'row', alignItems: 'center' },
   mLabel: { width: 46 },
   mHead: { width: 50, textAlign: 'center' },

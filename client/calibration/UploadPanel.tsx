@@ -46,6 +46,8 @@ function ProgressBar({ fraction, testID }: { fraction: number; testID?: string }
 }
 
 function issueWhere(i: SweepIssue): string {
+  // The core's messages usually name the row and column themselves; do not say it twice.
+  if (i.row !== null && i.message.includes(`row ${i.row}`)) return '';
   return [i.row !== null ? `row ${i.row}` : null, i.column ? `column ${i.column}` : null].filter(Boolean).join(', ');
 }
 

@@ -91,11 +91,11 @@ export function frequencyAxis(hzValues: number[]): { scale: number; unit: string
   return { scale: 1e-3, unit: 'kHz' };
 }
 
-/** Residuals (Hz) in a unit that keeps the numbers between about 0.1 and 1000. */
+/** Residuals (Hz) in the unit that keeps the largest one between 1 and 1000. */
 export function residualAxis(hzValues: number[]): { scale: number; unit: string } {
   const max = Math.max(...hzValues.map(Math.abs).filter(Number.isFinite), 0);
-  if (max >= 1e7) return { scale: 1e-9, unit: 'GHz' };
-  if (max >= 1e4) return { scale: 1e-6, unit: 'MHz' };
-  if (max >= 10) return { scale: 1e-3, unit: 'kHz' };
+  if (max >= 1e9) return { scale: 1e-9, unit: 'GHz' };
+  if (max >= 1e6) return { scale: 1e-6, unit: 'MHz' };
+  if (max >= 1e3) return { scale: 1e-3, unit: 'kHz' };
   return { scale: 1, unit: 'Hz' };
 }
