@@ -44,12 +44,13 @@ export function FitDetailView({ id, wide }: { id: number; wide: boolean }) {
           </Text>
         </View>
       </View>
-      <ReviewCard fit={fit} />
       <TuningCurveCard cal={cal} wide={wide} />
       <ResidualsCard cal={cal} wide={wide} />
       <ParamTable cal={cal} />
       <GoodnessCard cal={cal} />
       <WarningsCard warnings={cal.warnings} />
+      {/* Review after the evidence: curve, residuals, parameters, goodness, warnings. */}
+      <ReviewCard fit={fit} />
       {cal.traces && cal.traces.length ? <TraceQCard cal={cal} wide={wide} /> : null}
       {cal.traces && cal.traces.length ? <RawTraceCard fitId={fit.id} traces={cal.traces} biasUnit={cal.bias_unit} wide={wide} /> : null}
       <CorrelationMatrix cal={cal} />

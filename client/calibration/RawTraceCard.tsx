@@ -8,7 +8,7 @@ import type { Series } from '../charts/series';
 import { useFitTrace, type TraceView } from '../queries/fits';
 import { colors, space } from '../theme';
 import { Button } from '../ui/Button';
-import { Card, Field } from '../ui/Card';
+import { Card } from '../ui/Card';
 import { ErrorState, LoadingState } from '../ui/States';
 import { Text } from '../ui/Text';
 import { fmtSig } from './format';
@@ -44,6 +44,15 @@ function TraceCharts({ t, wide }: { t: TraceView; wide: boolean }) {
   );
 }
 
+function Stat({ label, value }: { label: string; value: string }) {
+  return (
+    <View style={{ gap: 2 }}>
+      <Text variant="caption">{label}</Text>
+      <Text variant="mono">{value}</Text>
+    </View>
+  );
+}
+
 export function RawTraceCard({ fitId, traces, biasUnit, wide }: { fitId: number; traces: TraceJson[]; biasUnit: string; wide: boolean }) {
   // Start at the middle trace: the ends of a sweep are often near the lobe edge.
   const [index, setIndex] = useState(() => Math.floor(traces.length / 2));
@@ -64,11 +73,12 @@ export function RawTraceCard({ fitId, traces, biasUnit, wide }: { fitId: number;
         </View>
       }
     >
-      <View style={{ flexDirection: 'row', flexWrap: 'wrap', gap: space.lg }}>
-        <Field label="Bias" value={`${fmtSig(meta.bias, 5)} ${biasUnit}`} mono />
-        <Field label="f_r" value={meta.fr_hz ? `${(meta.fr_hz / 1e9).toFixed(6)} GHz` : '—'} mono />
-        <Field label="Q_i" value={fmtSig(meta.qi, 3)} mono />
-        <Field label="|Q_c|" value={fmtSig(meta.qc, 3)} mono />
+      <View style={{ flexDirection: 'row', flexWrap: 'wrap', columnGap: space.xl, rowGap: space.sm }} testID="trace-stats">
+        <Stat label="bias" value={`${fmtSig(meta.bias, 5)} ${biasUnit}`} />
+        <Stat label="f_r" value={meta.fr_hz ? `${(meta.fr_hz / 1e9).toFixed(6)} GHz` : '—'} />
+        <Stat label="Q_i" value={fmtSig(meta.qi, 3)} />
+        <Stat label="|Q_c|" value={fmtSig(meta.qc, 3)} />
+        <Stat label="SNR" value={fmtSig(meta.snr, 3)} />
       </View>
       {meta.flag ? (
         <Text variant="small" style={{ color: colors.pending }}>

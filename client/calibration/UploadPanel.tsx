@@ -193,26 +193,28 @@ export function UploadPanel({ deviceId }: { deviceId: number }) {
         <View style={{ gap: space.md }}>
           <Choice label="Kind" testID="upload-kind" value={kind} options={KIND_OPTIONS} onChange={setKind} />
           <Choice label="Model" testID="upload-model" value={model} options={MODEL_OPTIONS} onChange={setModel} />
-          <TextField label="Line impedance Z0 [Ω]" testID="upload-z0" mono value={z0} onChangeText={setZ0} placeholder="optional, e.g. 50" keyboardType="decimal-pad" />
+          <TextField label="Line impedance Z0" hint="in Ω; optional" testID="upload-z0" mono value={z0} onChangeText={setZ0} placeholder="e.g. 50" keyboardType="decimal-pad" />
           {showProbe ? (
             <TextField
-              label="Probe frequency [GHz]"
+              label="Probe frequency"
+              hint="in GHz; for phase sweeps whose file does not state it"
               testID="upload-probe"
               mono
               value={probeGHz}
               onChangeText={setProbeGHz}
-              placeholder="phase sweeps, if the file does not state it"
+              placeholder="e.g. 6.2"
               keyboardType="decimal-pad"
             />
           ) : null}
           {showPattern ? (
             <TextField
-              label="Bias in file names (regular expression)"
+              label="Bias in file names"
+              hint="regular expression with one group; optional"
               testID="upload-bias-pattern"
               mono
               value={biasPattern}
               onChangeText={setBiasPattern}
-              placeholder="optional, e.g. bias_([-0-9.]+)mA"
+              placeholder="e.g. bias_([-0-9.]+)mA"
               autoCapitalize="none"
             />
           ) : null}
@@ -232,7 +234,7 @@ export function UploadPanel({ deviceId }: { deviceId: number }) {
       {upload.isError ? (
         <Notice tone="error" testID="upload-error">
           {issues.length
-            ? `${upload.error.message} Nothing was stored; fix the file and upload it again.`
+            ? `The file was refused (${issues.length === 1 ? 'one problem' : `${issues.length} problems`}, shown beside the file). Nothing was stored; fix the file and upload it again.`
             : errorMessage(upload.error)}
         </Notice>
       ) : null}

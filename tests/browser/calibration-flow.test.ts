@@ -6,7 +6,7 @@
 // The sweeps are generated here with the core's synthetic generator (calibration/synth.ts) from
 // known parameters; the truths the fit must recover are those parameters. The core's own accuracy
 // is tested against outside references in tests/unit; this test checks the app shows what it got.
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import type { Browser, Page } from 'playwright-core';
@@ -209,7 +209,9 @@ describe.each([
     await page.getByTestId('active-calibration').waitFor();
     expect(await page.getByTestId('active-calibration-version').textContent()).toBe('Version 1');
     expect(await page.getByTestId('active-f0').textContent()).toContain('GHz');
-    await page.getByTestId('calibration-accepted').waitFor();
+    await page.getByTestId('device-detail').getByTestId('calibration-accepted').waitFor();
+    // The devices list shows the status too (beside the detail on wide screens, one tap back on phones).
+    if (wide) await page.getByTestId(`device-row-${deviceName}`).getByTestId('calibration-accepted').waitFor();
 
     // Version 2 replaces it: on the phone another tuning sweep; on the wide screen a raw S21 sweep.
     let fit2: number;
@@ -217,7 +219,7 @@ describe.each([
       fit2 = await uploadAndOpen(page, [tuningFile(`${label}-sweep-2.csv`, 12)]);
     } else {
       const raw = path.join(dir, 'wide-raw.csv');
-      writeFileSync(raw, rawComplexCsv(TRUTH, { biasMin: -0.45, biasMax: 0.45, points: 15, seed: 5, freqPoints: 201, noise: 0.004 }));
+      writeFileSync(raw, rawComplexCsv(TRUTH, { biasMin: -0.5, biasMax: 0.5, points: 15, seed: 5, freqPoints: 201, noise: 0.004 }));
       fit2 = await uploadAndOpen(page, [raw]);
       // Per-trace Q values and one raw trace with its fitted circle.
       const q = await canvasInk(page, 'q-chart-canvas');
@@ -237,7 +239,18 @@ describe.each([
     expect(fit2).not.toBe(fit1);
     await page.getByTestId('fit-status-proposed').waitFor();
     await acceptWithComment(page, 'Second cooldown confirms it.');
-    await shot(page, 'calibration-fit-accepted');
+    await shotOf(page, 'review-record', 'calibration-fit-accepted');
+
+    // Export: the calibration JSON as a download, with the same f0 the page shows.
+    if (wide) {
+      const dl = page.waitForEvent('download');
+      await page.getByTestId('export-json').click();
+      const file = await (await dl).path();
+      const json = JSON.parse(readFileSync(file, 'utf8')) as { schema: string; params: { f0_hz: { value: number } } };
+      expect(json.schema).toBe('fluxwright.calibration/1');
+      const shown = firstNumber(await page.getByTestId('param-f0_hz-value').textContent()).value;
+      expect(Math.abs(json.params.f0_hz.value / 1e9 - shown)).toBeLessThan(1e-6);
+    }
 
     // The device: v2 active, v1 kept as superseded.
     await page.getByTestId('back-to-device').click();
