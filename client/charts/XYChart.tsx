@@ -21,7 +21,7 @@ export default function XYChart({ series, height, xDecimals, yDecimals, yTickFor
   const font = useFont(PLEX_MONO, 11);
 
   // One row per distinct x; each series fills its own column, the others stay null (gaps).
-  const { rows, keys, xd, yd } = useMemo(() => {
+  const { rows, keys, xd, yd, yTicks } = useMemo(() => {
     const byX = new Map<number, Row>();
     const ys: number[] = [];
     const xs: number[] = [];
@@ -46,13 +46,24 @@ export default function XYChart({ series, height, xDecimals, yDecimals, yTickFor
     });
     const xe = extent(xs);
     const ye = yDomain ?? extent(ys);
+    // Log-scaled values (pow10 labels): ticks on the 1-2-5 sequence instead of evenly in log10,
+    // from the tick just below the data to the one just above (victory takes its domain from them).
+    let yTicks: number[] | undefined;
+    if (yTickFormat === 'pow10' && ye) {
+      const seq: number[] = [];
+      for (let e = Math.floor(ye[0]) - 1; e <= Math.ceil(ye[1]) + 1; e++) for (const m of [1, 2, 5]) seq.push(e + Math.log10(m));
+      const lo = seq.filter((v) => v <= ye[0]).pop();
+      const hi = seq.find((v) => v >= ye[1]);
+      if (lo !== undefined && hi !== undefined) yTicks = seq.filter((v) => v >= lo - 1e-9 && v <= hi + 1e-9);
+    }
     return {
       rows,
       keys,
+      yTicks,
       xd: xDecimals ?? (xe ? decimalsForStep((xe[1] - xe[0]) / TICKS) : 2),
       yd: yDecimals ?? (ye ? decimalsForStep((ye[1] - ye[0]) / TICKS) : 2),
     };
-  }, [series, xDecimals, yDecimals, yDomain]);
+  }, [series, xDecimals, yDecimals, yDomain, yTickFormat]);
 
   if (rows.length === 0) return <View style={{ height }} testID={testID} />;
 
@@ -77,6 +88,7 @@ export default function XYChart({ series, height, xDecimals, yDecimals, yTickFor
           {
             font,
             tickCount: TICKS,
+            tickValues: yTicks,
             labelColor: colors.inkSoft,
             lineColor: colors.rule,
             formatYLabel: (v: number) => (typeof v !== 'number' ? String(v) : yTickFormat === 'pow10' ? pow10Label(v) : v.toFixed(yd)),

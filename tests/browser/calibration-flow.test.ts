@@ -224,6 +224,7 @@ describe.each([
       // Per-trace Q values and one raw trace with its fitted circle.
       const q = await canvasInk(page, 'q-chart-canvas');
       expect(q.ink / q.area).toBeGreaterThan(0.005);
+      expect(q.copper).toBeGreaterThan(15 * 20); // 15 filled copper Q_i dots of radius 3.5 px
       await page.getByTestId('raw-trace').waitFor();
       const iq = page.locator('[data-testid="trace-iq"] canvas').first();
       await iq.waitFor({ timeout: 60_000 });
@@ -235,6 +236,18 @@ describe.each([
       await page.getByTestId('trace-next').click();
       await page.waitForFunction(() => document.querySelector('[data-testid="trace-index"]')?.textContent?.startsWith('9/'));
       await expectParamNear(page, 'f0_hz', TRUTH.f0Hz / 1e9, 1e-4);
+
+      // The traces endpoint re-derives what the fit stored: same f_r for the same trace, the model on every frequency.
+      const stored = await api<{ fit: { calibration: { traces: { fr_hz: number | null }[] } } }>(page, `/api/fits/${fit2}`);
+      const view = await api<{ trace: { freqHz: number[]; model: { re: number[] } | null; extraction: { frHz: number } } }>(page, `/api/fits/${fit2}/traces/7`);
+      expect(view.trace.freqHz).toHaveLength(201);
+      expect(view.trace.model?.re).toHaveLength(201);
+      expect(Math.abs(view.trace.extraction.frHz / stored.fit.calibration.traces[7].fr_hz! - 1)).toBeLessThan(1e-9);
+      const tok = await sessionToken(page);
+      for (const bad of [`/api/fits/${fit2}/traces/15`, `/api/fits/${fit1}/traces/0`]) {
+        const r = await fetch(`${server.url}${bad}`, { headers: { Authorization: `Bearer ${tok}` } });
+        expect(r.status).toBe(404);
+      }
     }
     expect(fit2).not.toBe(fit1);
     await page.getByTestId('fit-status-proposed').waitFor();
