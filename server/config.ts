@@ -53,6 +53,8 @@ export interface Config {
   workers: number;
   /** How long an upload or refit request waits for its fit before answering 202, ms. */
   fitWaitMs: number;
+  /** A fit job still running after this long is stopped and failed, ms (FW_FIT_TIMEOUT_S). */
+  fitTimeoutMs: number;
 }
 
 type Env = Record<string, string | undefined>;
@@ -141,5 +143,6 @@ export function loadConfig(env: Env = process.env): Config {
     uploadLimitMb: int(env, 'FW_UPLOAD_LIMIT_MB', 60),
     workers: Math.max(1, int(env, 'FW_WORKERS', Math.min(2, availableParallelism()))),
     fitWaitMs: int(env, 'FW_FIT_WAIT_MS', 1500),
+    fitTimeoutMs: int(env, 'FW_FIT_TIMEOUT_S', 300) * 1000,
   };
 }

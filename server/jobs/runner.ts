@@ -25,13 +25,14 @@ import { completeFitJob, failFitJob } from '../features/calibration/fitStore';
 import type { CalibrateTask, ParseTask, ProgressMessage, WorkerFile, WorkerResult } from './calibrationWorker';
 
 export const MAX_ATTEMPTS = 3;
+export const DEFAULT_FIT_TIMEOUT_MS = 300_000;
 /** Progress writes are throttled: a 201-trace fit reports ~20 steps, the row needs only a few. */
 const PROGRESS_WRITE_MS = 200;
 
 export interface JobRunnerDeps {
   dataSource: DataSource;
   mailer: Mailer;
-  config: Pick<Config, 'workers' | 'appUrl'>;
+  config: Pick<Config, 'workers' | 'appUrl'> & Partial<Pick<Config, 'fitTimeoutMs'>>;
   log?: (msg: string, err?: unknown) => void;
 }
 
@@ -213,19 +214,28 @@ export class JobRunner {
       if (Date.now() - lastWrite >= PROGRESS_WRITE_MS) flush();
     });
 
+    const timeoutMs = this.deps.config.fitTimeoutMs ?? DEFAULT_FIT_TIMEOUT_MS;
     let result: WorkerResult<CalibrationJson>;
     try {
       const files = await sweepContents(ds.manager, job.sweepId);
       if (!files.length) throw new Error(`sweep ${job.sweepId} has no stored files`);
       const { files: wf, transfer } = toWorkerFiles(files.map((f) => ({ name: f.name, content: f.content })));
       const task: CalibrateTask = { files: wf, opts: coreOptions(job.options), port: port2 };
-      result = await this.workers().run(task, { name: 'calibrate', transferList: [...transfer, port2], signal });
+      // A fit that never returns must not hold a thread for ever: piscina ends the worker on abort.
+      const limit = AbortSignal.timeout(timeoutMs);
+      result = await this.workers().run(task, { name: 'calibrate', transferList: [...transfer, port2], signal: AbortSignal.any([signal, limit]) });
     } catch (e) {
       port1.close();
       await writing;
       // Aborted by close(): the row stays "running" and resume() picks it up after the restart.
       if (signal.aborted || this.closed) return;
-      result = { ok: false, error: { kind: 'internal', message: (e as Error)?.message ?? String(e), issues: [] } };
+      const timedOut = e instanceof Error && /abort/i.test(e.name + e.message) && !signal.aborted;
+      result = {
+        ok: false,
+        error: timedOut
+          ? { kind: 'internal', message: `the fit did not finish within ${Math.round(timeoutMs / 1000)} s and was stopped (FW_FIT_TIMEOUT_S)`, issues: [] }
+          : { kind: 'internal', message: (e as Error)?.message ?? String(e), issues: [] },
+      };
     }
     port1.close();
     await writing;
