@@ -15,8 +15,6 @@ trap 'bash scripts/db.sh stop >/dev/null 2>&1 || true' EXIT
 echo "[fluxwright] type-checking…"
 npx tsc --noEmit -p tsconfig.json
 
-echo "[fluxwright] building the web export for the browser tests…"
-EXPO_OFFLINE=1 CI=1 EXPO_NO_TELEMETRY=1 npx expo export --platform web --output-dir dist >/tmp/fluxwright-export.log 2>&1 \
-  || { tail -n 60 /tmp/fluxwright-export.log; echo "web export failed"; exit 1; }
+bash scripts/build-web.sh
 
 npx jest --ci "$@"
