@@ -46,7 +46,8 @@ function CooldownForm({ deviceId, onDone }: { deviceId: number; onDone: () => vo
   );
 }
 
-export function DeviceDetail({ id, showBack }: { id: number; showBack?: boolean }) {
+/** `calibration` is rendered between the design card and the cooldowns (the calibration section). */
+export function DeviceDetail({ id, showBack, calibration }: { id: number; showBack?: boolean; calibration?: React.ReactNode }) {
   const q = useDevice(id);
   const { user } = useSession();
   const [addingCooldown, setAddingCooldown] = useState(false);
@@ -91,15 +92,7 @@ export function DeviceDetail({ id, showBack }: { id: number; showBack?: boolean 
         <Field label="Line impedance Z0" value={formatImpedance(device.designZ0Ohm)} mono />
         <Field label="SQUID loop L" value={formatInductance(device.loopInductanceH)} mono />
       </Card>
-      <Card title="Calibration">
-        <Text variant="small">
-          {device.calibrationStatus === 'accepted'
-            ? 'An accepted calibration exists; the planner can use it once drive planning is switched on.'
-            : device.calibrationStatus === 'proposed'
-              ? 'A fitted calibration is waiting for review.'
-              : 'No calibration yet. Upload a resonance-versus-flux sweep when sweep import arrives.'}
-        </Text>
-      </Card>
+      {calibration}
       <Card
         title={`Cooldowns (${cooldowns.length})`}
         aside={

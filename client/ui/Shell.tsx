@@ -22,8 +22,12 @@ export const NAV_ITEMS: readonly NavItem[] = [
   { key: 'account', label: 'Account', href: '/account' },
 ];
 
+/** Fit pages belong to a device, so they light up Devices. */
+const SECTION_ALIASES: Record<string, string[]> = { '/devices': ['/fits'] };
+
 function isActive(pathname: string, href: string): boolean {
-  return pathname === href || pathname.startsWith(href + '/');
+  const roots = [href, ...(SECTION_ALIASES[href] ?? [])];
+  return roots.some((r) => pathname === r || pathname.startsWith(r + '/'));
 }
 
 /** Small drawn glyphs (no icon font): chip, sweep, stack, person. */
