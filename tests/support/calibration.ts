@@ -54,7 +54,7 @@ export async function waitForJob(app: Express, token: string, jobId: number, tim
   for (;;) {
     const r = await request(app).get(`/api/jobs/${jobId}`).set(bearer(token));
     if (r.status !== 200) throw new Error(`GET /api/jobs/${jobId}: ${r.status} ${JSON.stringify(r.body)}`);
-    if (r.body.job.status === 'succeeded' || r.body.job.status === 'failed') return r.body as { job: { status: string; fitId: number | null; message: string; progress: number }; fit?: { id: number; version: number } };
+    if (r.body.job.status === 'succeeded' || r.body.job.status === 'failed') return r.body as { job: { status: string; fitId: number | null; message: string; progress: number; attempts: number }; fit?: { id: number; version: number } };
     if (Date.now() > until) throw new Error(`job ${jobId} still ${r.body.job.status} after ${timeoutMs} ms`);
     await new Promise((res) => setTimeout(res, 100));
   }
