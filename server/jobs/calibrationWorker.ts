@@ -4,11 +4,10 @@
  * are returned as values so their file/row/column issues survive the thread boundary intact.
  * Relative imports only: the worker resolves modules without the @/ alias.
  */
-import type { MessagePort } from 'node:worker_threads';
 import type { CalibrationJson } from '../../calibration/contract';
 import { CalibrationRequestError, calibrateSweepData, extractionOptions, parseSweepFiles, type CalibrateOptions, type SweepFile } from '../../calibration/pipeline';
 import { SweepParseError, type SweepData, type TuningPointsData } from '../../calibration/io';
-import { extractSweep, type SweepExtraction, type SweepSummary } from '../../calibration/resonator';
+import { extractSweep, type ExtractOptions, type SweepExtraction, type SweepSummary, type SweepTrace } from '../../calibration/resonator';
 import type { ParseSummary, SweepIssue } from '../../shared/api/calibration';
 
 export interface WorkerFile {
@@ -28,16 +27,6 @@ export type WorkerResult<T> = { ok: true; value: T } | { ok: false; error: Worke
 export interface ParseTask {
   files: WorkerFile[];
   opts: CalibrateOptions;
-}
-
-export interface CalibrateTask extends ParseTask {
-  /** Receives { progress, message } while the job runs. */
-  port?: MessagePort;
-}
-
-export interface ProgressMessage {
-  progress: number;
-  message: string;
 }
 
 const MAX_SUMMARY_WARNINGS = 50;
@@ -127,6 +116,62 @@ export function parse(task: ParseTask): WorkerResult<ParseSummary> {
   }
 }
 
+export interface ParsedSweep {
+  summary: ParseSummary;
+  /** Parsed data (traces as Float64Arrays): handed back to the pool for extraction and fit. */
+  data: SweepData;
+}
+
+/** Parse and return the data too, so the job can split the extraction over the pool. */
+export function parseData(task: ParseTask): WorkerResult<ParsedSweep> {
+  try {
+    const data = parseSweepFiles(decode(task.files), task.opts);
+    return { ok: true, value: { summary: summarise(data), data } };
+  } catch (e) {
+    return { ok: false, error: toWorkerError(e) };
+  }
+}
+
+export interface ExtractChunkTask {
+  traces: SweepTrace[];
+  opts: ExtractOptions;
+}
+
+/** Per-trace extraction of one chunk of traces (the same call as the serial path, on fewer traces). */
+export function extract(task: ExtractChunkTask): WorkerResult<SweepExtraction> {
+  try {
+    const x = extractSweep(task.traces, task.opts);
+    // The per-trace fit objects are large and the fit needs only the JSON rows and the summary.
+    return { ok: true, value: { traces: x.traces, results: x.results.map((r) => ({ ...r, fit: undefined })) as SweepExtraction['results'], summary: x.summary } };
+  } catch (e) {
+    return { ok: false, error: toWorkerError(e) };
+  }
+}
+
+export interface FitTask {
+  /** For raw/Touchstone data with `extraction`, the traces may be left out (the fit reads the extraction). */
+  data: SweepData;
+  opts: CalibrateOptions;
+  extraction?: SweepExtraction;
+}
+
+/** The tuning or phase fit of parsed data (after a pooled extraction for raw/Touchstone data). */
+export function fitData(task: FitTask): WorkerResult<CalibrationJson> {
+  try {
+    return { ok: true, value: calibrateSweepData(task.data, task.opts, task.extraction) };
+  } catch (e) {
+    return { ok: false, error: toWorkerError(e) };
+  }
+}
+
+export function mergeExtractions(parts: SweepExtraction[]): SweepExtraction {
+  return {
+    traces: parts.flatMap((p) => p.traces),
+    results: parts.flatMap((p) => p.results),
+    summary: mergeSummaries(parts.map((p) => p.summary)),
+  };
+}
+
 function mergeSummaries(parts: SweepSummary[]): SweepSummary {
   const total = parts.reduce((s, p) => s + p.total, 0);
   return {
@@ -138,41 +183,4 @@ function mergeSummaries(parts: SweepSummary[]): SweepSummary {
     msPerTrace: total ? parts.reduce((s, p) => s + p.msPerTrace * p.total, 0) / total : 0,
     flagged: parts.flatMap((p) => p.flagged),
   };
-}
-
-/** Parse, per-trace extraction (in chunks, reporting progress), tuning or phase fit. */
-export function calibrate(task: CalibrateTask): WorkerResult<CalibrationJson> {
-  const say = (progress: number, message: string) => task.port?.postMessage({ progress, message } satisfies ProgressMessage);
-  try {
-    const data = parseSweepFiles(decode(task.files), task.opts);
-    if (data.kind === 'tuning_points' || data.kind === 'phase_flux') {
-      say(0.3, `parsed ${data.points.length} points; fitting`);
-      const json = calibrateSweepData(data, task.opts);
-      say(0.95, 'fit done');
-      return { ok: true, value: json };
-    }
-    const n = data.traces.length;
-    say(0.15, `parsed ${n} traces; extracting resonances`);
-    // Traces are independent: extracting them in chunks gives the same result as one call.
-    const xopts = extractionOptions(data, task.opts);
-    const chunk = Math.max(5, Math.ceil(n / 20));
-    const parts: SweepExtraction[] = [];
-    for (let i = 0; i < n; i += chunk) {
-      parts.push(extractSweep(data.traces.slice(i, i + chunk), xopts));
-      const done = Math.min(n, i + chunk);
-      say(0.15 + 0.75 * (done / n), `extracted ${done} of ${n} traces`);
-    }
-    const extraction: SweepExtraction = {
-      traces: parts.flatMap((p) => p.traces),
-      results: parts.flatMap((p) => p.results),
-      summary: mergeSummaries(parts.map((p) => p.summary)),
-    };
-    const json = calibrateSweepData(data, task.opts, extraction);
-    say(0.95, 'fit done');
-    return { ok: true, value: json };
-  } catch (e) {
-    return { ok: false, error: toWorkerError(e) };
-  } finally {
-    task.port?.close();
-  }
 }

@@ -4,25 +4,29 @@
  *
  * - The upload route awaits `parse` (in a worker) and only stores the sweep when it parses.
  * - `enqueue` runs a queued job: claim it (queued → running, a conditional UPDATE so only one runner
- *   gets it), load the sweep's stored bytes, `calibrate` in a worker (progress comes back over a
- *   MessagePort and is written to the row), then store the fit and finish the job in one transaction.
+ *   gets it), parse the sweep's stored bytes in a worker (or reuse the upload's parse), extract the
+ *   traces of raw/Touchstone data in chunks over all threads, fit in a worker (progress is written
+ *   to the row), then store the fit and finish the job in one transaction.
  * - `resume` (server start) re-queues jobs left queued or running by a stopped server; a job that
  *   was interrupted MAX_ATTEMPTS times is failed instead of being retried forever.
  * Runs one server process per database: a second process resuming would re-run the first one's jobs.
  */
-import { MessageChannel } from 'node:worker_threads';
 import path from 'node:path';
 import Piscina from 'piscina';
 import type { DataSource } from 'typeorm';
 import type { CalibrationJson } from '@/calibration/contract';
-import type { CalibrateOptions } from '@/calibration/pipeline';
-import type { FitOptions, ParseSummary } from '@/shared/api/calibration';
+import type { SweepData } from '@/calibration/io';
+import { extractionOptions, type CalibrateOptions } from '@/calibration/pipeline';
+import type { SweepExtraction } from '@/calibration/resonator';
+import type { FitOptions } from '@/shared/api/calibration';
 import type { Config } from '../config';
 import { JobEntity, type JobRow } from '../db/entities';
 import type { Mailer } from '../mail/mailer';
 import { sweepContents } from '../features/calibration/repository';
 import { completeFitJob, failFitJob } from '../features/calibration/fitStore';
-import type { CalibrateTask, ParseTask, ProgressMessage, WorkerFile, WorkerResult } from './calibrationWorker';
+import {
+  mergeExtractions, type ExtractChunkTask, type FitTask, type ParsedSweep, type ParseTask, type WorkerFile, type WorkerResult,
+} from './calibrationWorker';
 
 export const MAX_ATTEMPTS = 3;
 export const DEFAULT_FIT_TIMEOUT_MS = 300_000;
@@ -64,6 +68,8 @@ export class JobRunner {
   private readonly queued = new Set<number>();
   private readonly active = new Map<number, { abort: AbortController; done: Promise<void> }>();
   private readonly waiters = new Map<number, Array<() => void>>();
+  /** The upload's own parse, kept until its job starts (saves parsing the file twice). */
+  private readonly preparsed = new Map<number, SweepData>();
   private closed = false;
   private readonly log: (msg: string, err?: unknown) => void;
 
@@ -88,11 +94,11 @@ export class JobRunner {
     return this.pool;
   }
 
-  /** Parse in a worker (the upload's first step). */
-  async parse(files: Array<{ name: string; content: Uint8Array }>, opts: FitOptions): Promise<WorkerResult<ParseSummary>> {
+  /** Parse in a worker (the upload's first step); the data can be handed to enqueue(). */
+  async parse(files: Array<{ name: string; content: Uint8Array }>, opts: FitOptions): Promise<WorkerResult<ParsedSweep>> {
     const { files: wf, transfer } = toWorkerFiles(files);
     const task: ParseTask = { files: wf, opts: coreOptions(opts) };
-    return this.workers().run(task, { name: 'parse', transferList: transfer });
+    return this.workers().run(task, { name: 'parseData', transferList: transfer });
   }
 
   /** Start warming the worker threads (server start), so the first upload does not pay for it. */
@@ -101,8 +107,9 @@ export class JobRunner {
     void pool.run({ files: [], opts: {} } satisfies ParseTask, { name: 'parse' }).catch(() => undefined);
   }
 
-  enqueue(jobId: number): void {
+  enqueue(jobId: number, preparsed?: SweepData): void {
     if (this.closed || this.queued.has(jobId) || this.active.has(jobId)) return;
+    if (preparsed) this.preparsed.set(jobId, preparsed);
     this.queued.add(jobId);
     this.queue.push(jobId);
     this.pump();
@@ -156,6 +163,7 @@ export class JobRunner {
     this.closed = true;
     this.queue.length = 0;
     this.queued.clear();
+    this.preparsed.clear();
     for (const a of this.active.values()) a.abort.abort();
     await Promise.all([...this.active.values()].map((a) => a.done));
     for (const list of this.waiters.values()) for (const w of list) w();
@@ -186,6 +194,8 @@ export class JobRunner {
   private async run(jobId: number, signal: AbortSignal): Promise<void> {
     const ds = this.deps.dataSource;
     const repo = ds.getRepository(JobEntity);
+    const preparsed = this.preparsed.get(jobId);
+    this.preparsed.delete(jobId);
     // Claim: only the runner whose UPDATE changed the row owns the job.
     const claim = await repo
       .createQueryBuilder()
@@ -208,36 +218,26 @@ export class JobRunner {
         .then(() => repo.update({ id: jobId, status: 'running' }, { progress: p.progress, message: p.message }))
         .catch((e) => this.log(`job ${jobId}: progress write failed`, e));
     };
-    const { port1, port2 } = new MessageChannel();
-    port1.on('message', (m: ProgressMessage) => {
-      pending = { progress: Math.min(0.99, Math.max(0, m.progress)), message: m.message };
+    const say = (progress: number, message: string) => {
+      pending = { progress: Math.min(0.99, Math.max(0, progress)), message };
       if (Date.now() - lastWrite >= PROGRESS_WRITE_MS) flush();
-    });
+    };
 
     const timeoutMs = this.deps.config.fitTimeoutMs ?? DEFAULT_FIT_TIMEOUT_MS;
+    // A fit that never returns must not hold a thread for ever: piscina ends the worker on abort.
+    const deadline = AbortSignal.any([signal, AbortSignal.timeout(timeoutMs)]);
     let result: WorkerResult<CalibrationJson>;
     try {
-      const files = await sweepContents(ds.manager, job.sweepId);
-      if (!files.length) throw new Error(`sweep ${job.sweepId} has no stored files`);
-      const { files: wf, transfer } = toWorkerFiles(files.map((f) => ({ name: f.name, content: f.content })));
-      const task: CalibrateTask = { files: wf, opts: coreOptions(job.options), port: port2 };
-      // A fit that never returns must not hold a thread for ever: piscina ends the worker on abort.
-      const limit = AbortSignal.timeout(timeoutMs);
-      result = await this.workers().run(task, { name: 'calibrate', transferList: [...transfer, port2], signal: AbortSignal.any([signal, limit]) });
+      result = await this.calibrate(job, preparsed, deadline, say);
     } catch (e) {
-      port1.close();
       await writing;
       // Aborted by close(): the row stays "running" and resume() picks it up after the restart.
       if (signal.aborted || this.closed) return;
-      const timedOut = e instanceof Error && /abort/i.test(e.name + e.message) && !signal.aborted;
-      result = {
-        ok: false,
-        error: timedOut
-          ? { kind: 'internal', message: `the fit did not finish within ${Math.round(timeoutMs / 1000)} s and was stopped (FW_FIT_TIMEOUT_S)`, issues: [] }
-          : { kind: 'internal', message: (e as Error)?.message ?? String(e), issues: [] },
-      };
+      const message = deadline.aborted
+        ? `the fit did not finish within ${Math.round(timeoutMs / 1000)} s and was stopped (FW_FIT_TIMEOUT_S)`
+        : ((e as Error)?.message ?? String(e));
+      result = { ok: false, error: { kind: 'internal', message, issues: [] } };
     }
-    port1.close();
     await writing;
     if (this.closed && !result.ok) return;
     if (result.ok) {
@@ -245,5 +245,57 @@ export class JobRunner {
     } else {
       await failFitJob(ds, job, result.error);
     }
+  }
+
+  /**
+   * Parse (or take the upload's parse), extract raw/Touchstone traces in chunks spread over every
+   * thread of the pool (traces are independent, so the result equals the serial extraction), then fit.
+   */
+  private async calibrate(
+    job: JobRow,
+    preparsed: SweepData | undefined,
+    signal: AbortSignal,
+    say: (progress: number, message: string) => void,
+  ): Promise<WorkerResult<CalibrationJson>> {
+    const pool = this.workers();
+    const opts = coreOptions(job.options);
+    let data = preparsed;
+    if (!data) {
+      const files = await sweepContents(this.deps.dataSource.manager, job.sweepId);
+      if (!files.length) throw new Error(`sweep ${job.sweepId} has no stored files`);
+      const { files: wf, transfer } = toWorkerFiles(files.map((f) => ({ name: f.name, content: f.content })));
+      const parsed: WorkerResult<ParsedSweep> = await pool.run({ files: wf, opts } satisfies ParseTask, { name: 'parseData', transferList: transfer, signal });
+      if (!parsed.ok) return parsed;
+      data = parsed.value.data;
+    }
+    if (data.kind === 'tuning_points' || data.kind === 'phase_flux') {
+      say(0.3, `parsed ${data.points.length} points; fitting`);
+      return pool.run({ data, opts } satisfies FitTask, { name: 'fitData', signal });
+    }
+    const traces = data.traces;
+    const n = traces.length;
+    say(0.15, `parsed ${n} traces; extracting resonances`);
+    const xopts = extractionOptions(data, opts);
+    // A few chunks per thread so one slow chunk does not leave a core idle.
+    const size = Math.max(1, Math.ceil(n / Math.max(1, this.threads * 4)));
+    let done = 0;
+    const chunks: Array<Promise<WorkerResult<SweepExtraction>>> = [];
+    for (let i = 0; i < n; i += size) {
+      const part = traces.slice(i, i + size);
+      chunks.push(
+        pool.run({ traces: part, opts: xopts } satisfies ExtractChunkTask, { name: 'extract', signal }).then((r: WorkerResult<SweepExtraction>) => {
+          done += part.length;
+          say(0.15 + 0.75 * (done / n), `extracted ${done} of ${n} traces`);
+          return r;
+        }),
+      );
+    }
+    const parts = await Promise.all(chunks);
+    const failed = parts.find((p) => !p.ok);
+    if (failed && !failed.ok) return failed;
+    const extraction = mergeExtractions(parts.map((p) => (p as { ok: true; value: SweepExtraction }).value));
+    say(0.92, 'fitting the tuning curve');
+    // The fit reads the extraction, not the traces: leave the bulky arrays out of the message.
+    return pool.run({ data: { ...data, traces: [] }, opts, extraction } satisfies FitTask, { name: 'fitData', signal });
   }
 }

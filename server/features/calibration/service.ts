@@ -2,6 +2,7 @@ import { createHash } from 'node:crypto';
 import Papa from 'papaparse';
 import type { DataSource } from 'typeorm';
 import type { CalibrationJson, ValueWithError } from '@/calibration/contract';
+import type { SweepData } from '@/calibration/io';
 import type {
   Fit, FitComparison, FitDetail, FitOptions, Job, ParameterComparison, RefitRequest, ReviewRequest, Sweep, UploadOptions,
 } from '@/shared/api/calibration';
@@ -88,8 +89,8 @@ export interface StartedFit {
   body: { sweep: Sweep; job: Job; fit?: Fit };
 }
 
-async function waitAndAnswer(d: CalibrationDeps, sweep: SweepRow, jobId: number): Promise<StartedFit> {
-  d.jobs.enqueue(jobId);
+async function waitAndAnswer(d: CalibrationDeps, sweep: SweepRow, jobId: number, preparsed?: SweepData): Promise<StartedFit> {
+  d.jobs.enqueue(jobId, preparsed);
   const job = (await d.jobs.waitFor(jobId, d.config.fitWaitMs)) as JobRow;
   const body: StartedFit['body'] = { sweep: await sweepJson(d.dataSource, sweep), job: toJobJson(job) };
   const finished = job.status === 'succeeded' || job.status === 'failed';
@@ -131,7 +132,7 @@ export async function uploadSweep(
   let refusal: AppError | null = null;
   if (!parsed.ok) {
     refusal = new AppError(422, 'SWEEP_INVALID', parsed.error.message, { issues: parsed.error.issues });
-  } else if (parsed.value.kind === 'phase_flux' && !parsed.value.probeFrequencyHz) {
+  } else if (parsed.value.summary.kind === 'phase_flux' && !parsed.value.summary.probeFrequencyHz) {
     refusal = AppError.validation(
       [{ path: 'probeFrequencyHz', message: `${names[0]} states no probe frequency: give probeFrequencyHz (Hz)` }],
     );
@@ -150,7 +151,7 @@ export async function uploadSweep(
     );
     throw refusal;
   }
-  const summary = parsed.ok ? parsed.value : (undefined as never);
+  const { summary, data } = parsed.ok ? parsed.value : (undefined as never);
   const fileShas = files.map((f) => sha256(f.buffer));
   const setSha = files.length === 1 ? fileShas[0] : sha256(names.map((n, i) => `${n}:${fileShas[i]}`).sort().join('\n'));
   // The re-parse in the job must read the files the same way the upload did.
@@ -207,7 +208,7 @@ export async function uploadSweep(
     });
     return { sweep: await em.getRepository(SweepEntity).findOneByOrFail({ id: sweepId }), jobId: job.identifiers[0].id as number };
   });
-  return waitAndAnswer(d, sweep, jobId);
+  return waitAndAnswer(d, sweep, jobId, data);
 }
 
 export async function listSweeps(ds: DataSource, labId: number, deviceId: number): Promise<Sweep[]> {
