@@ -1,11 +1,17 @@
 // Review (accept/reject, concurrent accepts), refit versions, immutability, compare, the device's
 // calibration JSON for the planner, export, e-mail and audit.
 // Status codes: RFC 9110 §15.5.10 (409 Conflict: the fit's current state forbids the review).
+import { mkdtempSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
 import Papa from 'papaparse';
+import { createConnection } from 'mysql2/promise';
+import { runFit } from '@/calibration/cli/fit';
 import request from 'supertest';
 import { planFromCalibration } from '@/calibration/planner';
 import { FIT_ID_HEADER, FIT_VERSION_HEADER } from '@/shared/api/calibration';
 import { bearer, demoUser, signInAs } from '../support/api';
+import { TEST_DB } from '../support/ensureTestDb';
 import { startTestServer, type TestServer } from '../support/testServer';
 import { closeServer, files, newDevice, TRUTH, uploadAndFit, waitForJob } from '../support/calibration';
 
@@ -136,6 +142,19 @@ describe('the device calibration JSON', () => {
     expect(plan.pump_frequency_hz).toBeGreaterThan(2 * 5e9);
     expect(plan.pump_frequency_hz).toBeLessThan(2 * TRUTH.f0Hz);
   });
+
+  it('equals what the command line prints with `fit --json` for the same file and options', async () => {
+    const deviceId = await newDevice(ts.app, eng, `RV-cli-${++n}`); // design Z0 = 50 Ω, no loop inductance
+    const [file] = files.tuning(85, TRUTH, 90);
+    const { fit } = await uploadAndFit(ts.app, eng, deviceId, [file]);
+    await review(eng, fit.id, 'accept');
+    const served = await request(ts.app).get(`/api/devices/${deviceId}/calibration`).set(bearer(exp));
+    const dir = mkdtempSync(path.join(tmpdir(), 'fw-cli-'));
+    writeFileSync(path.join(dir, file.name), file.text);
+    const cli = runFit([path.join(dir, file.name), '--json', '--model', 'exact', '--z0', '50']);
+    expect(cli.exitCode).toBe(0);
+    expect(served.body).toEqual(JSON.parse(cli.stdout));
+  });
 });
 
 describe('refit, versions and immutability', () => {
@@ -176,13 +195,21 @@ describe('refit, versions and immutability', () => {
     expect(reviewedBy).not.toBeNull();
     expect(reviewedAt).not.toBeNull();
     expect(reviewComment).toBe('noisy');
-    await expect(ts.dataSource.query("UPDATE fit SET f0Hz = 1 WHERE id = ?", [id])).rejects.toThrow(/immutable/);
-    await expect(ts.dataSource.query("UPDATE fit SET calibration = '{}' WHERE id = ?", [id])).rejects.toThrow(/immutable/);
-    await expect(ts.dataSource.query("UPDATE fit SET version = 99 WHERE id = ?", [id])).rejects.toThrow(/immutable/);
-    // (deviceId, version) is unique: a second v1 for the device is refused by the database.
-    await expect(
-      ts.dataSource.query('INSERT INTO fit (labId, deviceId, sweepId, version, kind, model, options, calibration, ndata, outlierCount, success, coreVersion, status) SELECT labId, deviceId, sweepId, version, kind, model, options, calibration, ndata, outlierCount, success, coreVersion, status FROM fit WHERE id = ?', [id]),
-    ).rejects.toThrow(/Duplicate entry/);
+    // Straight SQL on a plain connection (as a script with database access would do).
+    const sql = await createConnection({ ...TEST_DB, database: ts.database });
+    try {
+      await expect(sql.query('UPDATE fit SET f0Hz = 1 WHERE id = ?', [id])).rejects.toThrow(/immutable/);
+      await expect(sql.query("UPDATE fit SET calibration = '{}' WHERE id = ?", [id])).rejects.toThrow(/immutable/);
+      await expect(sql.query('UPDATE fit SET version = 99 WHERE id = ?', [id])).rejects.toThrow(/immutable/);
+      // Review fields stay writable (that is how a review is stored).
+      await sql.query("UPDATE fit SET reviewComment = 'noisy (edited)' WHERE id = ?", [id]);
+      // (deviceId, version) is unique: a second v1 for the device is refused by the database.
+      await expect(
+        sql.query('INSERT INTO fit (labId, deviceId, sweepId, version, kind, model, options, calibration, ndata, outlierCount, success, coreVersion, status) SELECT labId, deviceId, sweepId, version, kind, model, options, calibration, ndata, outlierCount, success, coreVersion, status FROM fit WHERE id = ?', [id]),
+      ).rejects.toThrow(/Duplicate entry/);
+    } finally {
+      await sql.end();
+    }
   });
 
   it('a fit that did not converge cannot be accepted (409)', async () => {

@@ -5,6 +5,7 @@
 // tests hold against scipy-generated fixtures.
 // Status codes: RFC 9110 §15.3.2 (201 Created), §15.3.3 (202 Accepted), §15.5.14 (413 Content Too
 // Large), §15.5.21 (422 Unprocessable Content).
+import { createHash } from 'node:crypto';
 import request from 'supertest';
 import { bearer, signInAs } from '../support/api';
 import { startTestServer, type TestServer } from '../support/testServer';
@@ -173,6 +174,22 @@ describe('jobs', () => {
     expect(after.sweep).toBe(before.sweep + 1);
     const [ev] = await ts.dataSource.query("SELECT action FROM audit_event WHERE subjectType = 'job' AND subjectId = ?", [String(r.body.job.id)]);
     expect(ev.action).toBe('fit.failed');
+  });
+});
+
+describe('large files', () => {
+  it('a ~20 MB raw sweep (above MariaDB\'s 16 MB default packet) is stored byte for byte and fitted', async () => {
+    const deviceId = await newDevice(ts.app, eng, 'UP-20MB');
+    const big = files.raw(31, TRUTH, 241, 2001);
+    const bytes = Buffer.byteLength(big[0].text);
+    expect(bytes).toBeGreaterThan(19e6);
+    const { upload: r, fit } = await uploadAndFit(ts.app, eng, deviceId, big);
+    // The database's own SHA2 of the stored blob equals the hash of what was sent (FIPS 180-4 SHA-256).
+    const [row] = await ts.dataSource.query('SELECT byteSize, sha256, SHA2(content, 256) AS dbSha FROM sweep_file WHERE sweepId = ?', [r.body.sweep.id]);
+    const sent = createHash('sha256').update(big[0].text).digest('hex');
+    expect({ size: row.byteSize, sha: row.sha256, dbSha: row.dbSha }).toEqual({ size: bytes, sha: sent, dbSha: sent });
+    expect(r.body.sweep.sha256).toBe(sent);
+    expectTuningTruth((await calibrationOf(fit.id)).params);
   });
 });
 
