@@ -4,17 +4,15 @@
  */
 import { performance } from 'node:perf_hooks';
 import { availableParallelism, loadavg } from 'node:os';
-import { rawComplexCsv, tuningPointsCsv, type SyntheticDevice } from '../../calibration/synth';
+import { rawComplexCsv, tuningPointsCsv } from '../../calibration/synth';
+import { BENCH_DEVICE as device, BENCH_RAW_SHAPE } from './device';
+import { benchUpload } from './upload';
 import { calibrateFiles, parseSweepFiles } from '../../calibration/pipeline';
 import { fitTuningCurve } from '../../calibration/tuning/fitTuning';
 import { createExtractionPool, calibrateFilesParallel } from '../../calibration/workers/pool';
 import { planFromCalibration, rankOperatingPoints } from '../../calibration/planner';
 import type { TuningPointsData } from '../../calibration/io';
 
-const device: SyntheticDevice = {
-  f0Hz: 6.2e9, gamma0: 0.04, asymmetry: 0.1, fluxPeriod: 1.1, fluxOffset: 0.07, biasUnit: 'mA',
-  geometry: 'notch', qi: 4e4, qcAbs: 1.5e4, phiRad: 0.15, a: 0.3, alphaRad: 1.1, delayS: 55e-9,
-};
 
 function quantile(xs: number[], q: number): number {
   const s = [...xs].sort((a, b) => a - b);
@@ -50,7 +48,7 @@ async function main(): Promise<void> {
   line('tuning fit, 200 points, approx model', await timeIt(40, () => fitTuningCurve(pts, { model: 'approx' })));
 
   // 2. Raw sweep 201 bias × 2001 frequency points: parse + extraction + tuning fit.
-  const raw = rawComplexCsv(device, { biasMin: -0.6, biasMax: 0.6, points: 201, freqPoints: 2001, noise: 0.004, seed: 7 });
+  const raw = rawComplexCsv(device, BENCH_RAW_SHAPE);
   console.log(`raw sweep CSV: ${(raw.length / 1e6).toFixed(1)} MB, 201 × 2001 points`);
   const files = [{ name: 'raw.csv', text: raw }];
   line('raw sweep, parse only', await timeIt(3, () => parseSweepFiles(files)));
@@ -73,6 +71,10 @@ async function main(): Promise<void> {
     await timeIt(10, () => rankOperatingPoints(cal, { ...cavity, uncertaintyDraws: 1000 }, { points: 200 })),
     '≤ 300 ms',
   );
+
+  // 4. Through the product: upload of the raw sweep to a stored proposed fit (real MariaDB, worker pool).
+  console.log('upload of the 201 × 2001 raw sweep through the API (target: stored proposed fit ≤ 5 s):');
+  await benchUpload();
 }
 
 main().catch((e) => {

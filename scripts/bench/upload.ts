@@ -9,16 +9,12 @@
 import 'reflect-metadata';
 import { performance } from 'node:perf_hooks';
 import request from 'supertest';
-import { rawComplexCsv, type SyntheticDevice } from '../../calibration/synth';
+import { rawComplexCsv } from '../../calibration/synth';
+import { BENCH_DEVICE as device, BENCH_RAW_SHAPE } from './device';
 import type { JobRunner } from '../../server/jobs/runner';
 import { DEMO_USERS } from '../../server/db/seed';
 import { startTestServer } from '../../tests/support/testServer';
 
-// The same invented device and sweep shape as the raw-sweep figure of scripts/bench/run.ts.
-const device: SyntheticDevice = {
-  f0Hz: 6.2e9, gamma0: 0.04, asymmetry: 0.1, fluxPeriod: 1.1, fluxOffset: 0.07, biasUnit: 'mA',
-  geometry: 'notch', qi: 4e4, qcAbs: 1.5e4, phiRad: 0.15, a: 0.3, alphaRad: 1.1, delayS: 55e-9,
-};
 
 export async function benchUpload(): Promise<void> {
   const ts = await startTestServer({ seedDemo: true });
@@ -28,7 +24,7 @@ export async function benchUpload(): Promise<void> {
     const auth = { Authorization: `Bearer ${sign.body.token}` };
     const devices = await request(ts.app).get('/api/devices').set(auth);
     const deviceId = (devices.body.devices as Array<{ id: number; name: string }>).find((d) => d.name === 'Q4-R1')!.id;
-    const text = rawComplexCsv(device, { biasMin: -0.6, biasMax: 0.6, points: 201, freqPoints: 2001, noise: 0.004, seed: 7 });
+    const text = rawComplexCsv(device, BENCH_RAW_SHAPE);
     const bytes = Buffer.from(text, 'utf8');
     console.log(`upload benchmark: raw sweep 201 × 2001 points, ${(bytes.length / 1e6).toFixed(1)} MB, ${ts.config.workers} worker thread(s)`);
     const runs = [
