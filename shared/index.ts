@@ -8,3 +8,4 @@ export * from './api/outbox';
 export * from './api/audit';
 export * from './api/batches';
 export * from './api/devices';
+export * from './api/planning';
