@@ -11,6 +11,9 @@ export * from './MailMessage';
 export * from './Sweep';
 export * from './Fit';
 export * from './Job';
+export * from './Plan';
+export * from './PumpLine';
+export * from './SpecWindow';
 
 import { ApiTokenEntity } from './ApiToken';
 import { AuditEventEntity } from './AuditEvent';
@@ -23,6 +26,9 @@ import { JobEntity } from './Job';
 import { LabEntity } from './Lab';
 import { MailMessageEntity } from './MailMessage';
 import { PasswordResetEntity } from './PasswordReset';
+import { PlanEntity, PlanNoteEntity } from './Plan';
+import { PumpLineEntity } from './PumpLine';
+import { SpecWindowEntity } from './SpecWindow';
 import { SweepEntity, SweepFileEntity } from './Sweep';
 import { UserEntity } from './User';
 
@@ -41,4 +47,8 @@ export const ENTITIES = [
   SweepFileEntity,
   FitEntity,
   JobEntity,
+  PlanEntity,
+  PlanNoteEntity,
+  PumpLineEntity,
+  SpecWindowEntity,
 ];
