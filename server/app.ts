@@ -4,11 +4,13 @@ import { guardFactory } from './auth/middleware';
 import type { AppDeps, RouteDeps } from './deps';
 import { auditRoutes } from './features/audit/routes';
 import { authRoutes, publicAuthRoutes } from './features/auth/routes';
+import { batchCompareRoutes } from './features/batchCompare/routes';
 import { batchRoutes } from './features/batches/routes';
 import { calibrationRoutes } from './features/calibration/routes';
 import { deviceRoutes } from './features/devices/routes';
 import { invitationRoutes, publicInvitationRoutes } from './features/invitations/routes';
 import { outboxRoutes } from './features/outbox/routes';
+import { planningRoutes } from './features/planning/routes';
 import { tokenRoutes } from './features/tokens/routes';
 import { traceRoutes } from './features/traces/routes';
 import { userRoutes } from './features/users/routes';
@@ -76,6 +78,8 @@ export function createApp(deps: AppDeps, opts: CreateAppOptions = {}): Express {
     deviceRoutes,
     traceRoutes,
     calibrationRoutes,
+    planningRoutes,
+    batchCompareRoutes,
   ]) {
     api.use(routes(rd));
   }

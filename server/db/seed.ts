@@ -18,6 +18,7 @@ import type { Geometry } from '@/shared/api/devices';
 import { hashPassword } from '../auth/passwords';
 import { CooldownEntity, DeviceEntity, FabBatchEntity, FitEntity, JobEntity, LabEntity, SweepEntity, SweepFileEntity, UserEntity } from './entities';
 import { recordAudit } from '../features/audit/service';
+import { seedDemoPlanning } from './seedPlanning';
 
 export const DEMO_LAB_NAME = 'Cryo Device Group (demo)';
 
@@ -55,6 +56,7 @@ const DEVICES: ReadonlyArray<{
 export async function seedDemo(ds: DataSource, opts: { bcryptCost: number }): Promise<{ created: boolean }> {
   if (await ds.getRepository(LabEntity).findOneBy({ name: DEMO_LAB_NAME })) {
     await seedDemoCalibrations(ds);
+    await seedDemoPlanningOfLab(ds);
     return { created: false };
   }
   const hashes = await Promise.all(DEMO_USERS.map((u) => hashPassword(u.password, opts.bcryptCost)));
@@ -105,7 +107,14 @@ export async function seedDemo(ds: DataSource, opts: { bcryptCost: number }): Pr
     await recordAudit(em, { labId: lab.id, actorId: null, action: 'demo.seed', subjectType: 'lab', subjectId: lab.id });
   });
   await seedDemoCalibrations(ds);
+  await seedDemoPlanningOfLab(ds);
   return { created: true };
+}
+
+/** Pump lines, spec windows and plans of the demo lab (server/db/seedPlanning.ts), once. */
+function seedDemoPlanningOfLab(ds: DataSource): Promise<{ created: boolean }> {
+  const by = (role: Role) => DEMO_USERS.find((u) => u.role === role)!.email;
+  return seedDemoPlanning(ds, DEMO_LAB_NAME, { experimentalist: by('experimentalist'), engineer: by('device_engineer'), lead: by('lab_lead') });
 }
 
 // ---------------------------------------------------------------------------------------------

@@ -6,6 +6,7 @@ import type { DeviceRow, FitRow } from '../../db/entities';
 import type { Mailer } from '../../mail/mailer';
 import { labName } from '../users/repository';
 import { headline } from './json';
+import { experimentalistsWithPlansOn } from '../planning/repository';
 import { activeUsersWithRole, usersById } from './repository';
 
 const deviceLink = (config: Pick<Config, 'appUrl'>, device: DeviceRow) => `${config.appUrl}/devices/${device.id}`;
@@ -44,9 +45,9 @@ export async function notifyFitProposed(
 }
 
 /**
- * An accepted calibration. For now every active experimentalist of the lab is told: drive plans
- * are not stored yet, so there is no list of "people with plans on this device". Once plans exist,
- * narrow this to the owners of plans that use the device.
+ * An accepted calibration: the active experimentalists who have saved plans on the device are told
+ * (their plans are now stale and can be re-planned). Nobody else: without plans there is no one to
+ * tell.
  */
 export async function notifyCalibrationAccepted(
   ds: DataSource,
@@ -57,7 +58,7 @@ export async function notifyCalibrationAccepted(
   reviewerName: string,
 ): Promise<number> {
   const em = ds.manager;
-  const [recipients, lab] = await Promise.all([activeUsersWithRole(em, fit.labId, 'experimentalist'), labName(em, fit.labId)]);
+  const [recipients, lab] = await Promise.all([experimentalistsWithPlansOn(em, fit.labId, device.id), labName(em, fit.labId)]);
   for (const r of recipients) {
     await mailer.sendCalibrationAccepted({
       to: r.email,
