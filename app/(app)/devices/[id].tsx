@@ -2,6 +2,7 @@ import React from 'react';
 import { useLocalSearchParams } from 'expo-router';
 import { DeviceCalibration } from '@/client/calibration/DeviceCalibration';
 import { DeviceDetail } from '@/client/devices/DeviceDetail';
+import { DevicePlanningCard } from '@/client/planning/DevicePlanningCard';
 import { Screen } from '@/client/ui/Screen';
 import { useIsWide } from '@/client/ui/useLayout';
 
@@ -11,7 +12,16 @@ export default function DeviceScreen() {
   const deviceId = Number(id);
   return (
     <Screen testID="device-screen" maxWidth={820}>
-      <DeviceDetail id={deviceId} showBack={!wide} calibration={<DeviceCalibration deviceId={deviceId} />} />
+      <DeviceDetail
+        id={deviceId}
+        showBack={!wide}
+        calibration={
+          <>
+            <DeviceCalibration deviceId={deviceId} />
+            <DevicePlanningCard deviceId={deviceId} />
+          </>
+        }
+      />
     </Screen>
   );
 }

@@ -1,0 +1,30 @@
+import { useEffect } from 'react';
+import { Platform } from 'react-native';
+
+// Print layout of a plan sheet: no navigation or buttons, black on white, every scroll view let out
+// to its full height so the whole sheet prints (RN-web scroll views are fixed-height boxes).
+const CSS = `
+@media print {
+  @page { margin: 14mm; }
+  html, body { background: #fff !important; }
+  body, body * { color: #000 !important; box-shadow: none !important; }
+  html, body, #root, #root div { height: auto !important; max-height: none !important; min-height: 0 !important; overflow: visible !important; }
+  #root div { background-color: transparent !important; border-color: #999 !important; }
+  [data-testid="nav-rail"], [data-testid="tab-bar"], [data-testid="top-bar"], [data-testid="plans-list-pane"],
+  [role="button"], [data-print="hide"], [data-testid$="-noprint"] { display: none !important; }
+  canvas { max-width: 100% !important; }
+}`;
+
+/** Injects the print stylesheet while a plan sheet is open (web only). */
+export function PrintStyle() {
+  useEffect(() => {
+    if (Platform.OS !== 'web' || typeof document === 'undefined') return;
+    const el = document.createElement('style');
+    el.id = 'fw-plan-print';
+    el.setAttribute('media', 'print');
+    el.textContent = CSS;
+    document.head.appendChild(el);
+    return () => el.remove();
+  }, []);
+  return null;
+}
