@@ -63,6 +63,12 @@ const LAMBDA_INITIAL = 1e-3;
 /** Relative change of a finite-difference column, step h vs h/16, above which the Jacobian is called unreliable. */
 const JACOBIAN_CONSISTENCY = 0.05;
 const LAMBDA_MAX = 1e30;
+/**
+ * Floor of the damping. Long runs of very successful steps shrink λ by 3 each time; without a
+ * floor it underflows to 0, and 0·ν stays 0, so a singular JᵀJ (a flat direction, e.g. a parameter
+ * entering only as its square, sitting at 0) could never be damped again and the loop would spin.
+ */
+const LAMBDA_MIN = 1e-20;
 
 const LOSSES: readonly Loss[] = ['linear', 'soft_l1', 'huber', 'cauchy'];
 
@@ -534,7 +540,7 @@ export function leastSquares(
       r = e.r;
       cost = newCost;
       jac = null;
-      lambda *= Math.max(1 / 3, 1 - (2 * ratio - 1) ** 3);
+      lambda = Math.max(LAMBDA_MIN, lambda * Math.max(1 / 3, 1 - (2 * ratio - 1) ** 3));
       nu = 2;
       if (cost === 0) {
         converged = true;
