@@ -12,12 +12,14 @@
  *   (min bias + max bias)/2; the fit is polished once more after that shift so the covariance
  *   refers to the reported offset.
  * - Noise: per-point sigmaHz when every point has one; otherwise one σ for all points estimated
- *   as 1.4826·MAD of the residuals of the best start (then σ-weighted residuals are ~N(0,1)).
+ *   from the residuals of the best start (tuning/common.ts residualScale: MAD pass, then the RMS
+ *   of the inliers, degrees-of-freedom corrected), so σ-weighted residuals are ~N(0,1).
  *   The engine scales the covariance by redchi either way (lmfit scale_covar).
  * - Robust loss (default soft_l1) with fScale = 2 in σ units: Gaussian inliers keep weight ≥ 0.7,
  *   picks of a spurious mode far away get little weight.
- * - Outlier rule: point i is an outlier when |r_i/σ_i| > 5·s, s = 1.4826·MAD of the σ-weighted
- *   residuals (robust sigma), and |r_i| > 1e-8·f0 (so numerical noise on clean data is never flagged).
+ * - Outlier rule: point i is an outlier when |r_i/σ_i| > 5·s, s = residualScale of the σ-weighted
+ *   residuals, at least 1 with given σ (tuning/common.ts outlierScale), and |r_i| > 1e-8·f0 (so
+ *   numerical noise on clean data is never flagged).
  */
 import { leastSquares } from '../fit/leastsq';
 import type { FitResult, JacobianFunction, Loss, ParameterSpec } from '../fit/types';
@@ -26,8 +28,8 @@ import {
   lineInductance, resonanceDerivatives, resonanceFrequency, screeningParameter, SquidLineParams, TuningModel,
 } from '../squid/model';
 import {
-  biasQuantity, dominantPeriod, median, noiseFromSecondDifferences, offsetNearestCentre, orderByBias,
-  requireFinite, robustCost, robustSigma, runningMedian, TuningInputError, weightedLine,
+  biasQuantity, dominantPeriod, goodnessWarning, median, noiseFromSecondDifferences, offsetNearestCentre, orderByBias, outlierScale,
+  chooseStarts, requireFinite, residualScale, robustCost, robustSigma, runningMedian, TuningInputError, weightedLine,
 } from './common';
 
 export interface TuningPoint {
@@ -150,14 +152,15 @@ export function tuningModelWithGradient(
   const n = bias.length;
   const f0 = p.f0_hz;
   const g0 = p.gamma0;
-  const d = p.asymmetry;
+  // the search may carry d² (asymmetry_sq) instead of d, see fitTuningCurve
+  const d = p.asymmetry_sq !== undefined ? Math.sqrt(Math.max(p.asymmetry_sq, 0)) : p.asymmetry;
   const P = p.flux_period;
   const o = p.flux_offset;
   const c = p.cs_over_cr ?? 0;
   const f = new Float64Array(n);
   const grad = wantGrad
     ? {
-        f0_hz: new Float64Array(n), gamma0: new Float64Array(n), asymmetry: new Float64Array(n),
+        f0_hz: new Float64Array(n), gamma0: new Float64Array(n), asymmetry: new Float64Array(n), asymmetry_sq: new Float64Array(n),
         flux_period: new Float64Array(n), flux_offset: new Float64Array(n), cs_over_cr: new Float64Array(n),
       }
     : null;
@@ -173,7 +176,8 @@ export function tuningModelWithGradient(
     }
     const sD = Math.sqrt(D);
     const D1 = -Math.PI * (1 - d * d) * Math.sin(2 * Math.PI * phi); // ∂D/∂φ
-    const Dd = 2 * d * sp * sp; // ∂D/∂d
+    const Dq = sp * sp; // ∂D/∂(d²)
+    const Dd = 2 * d * Dq; // ∂D/∂d
     if (model === 'approx') {
       const gam = g0 / sD;
       const one = 1 + gam;
@@ -184,6 +188,7 @@ export function tuningModelWithGradient(
         grad.f0_hz[i] = 1 / one;
         grad.gamma0[i] = (dfdgam * gam) / g0;
         grad.asymmetry[i] = dfdgam * dgamdD * Dd;
+        grad.asymmetry_sq[i] = dfdgam * dgamdD * Dq;
         const dfdphi = dfdgam * dgamdD * D1;
         grad.flux_offset[i] = -dfdphi / P;
         grad.flux_period[i] = (-dfdphi * phi) / P;
@@ -198,6 +203,7 @@ export function tuningModelWithGradient(
         grad.f0_hz[i] = r.x / (Math.PI / 2);
         grad.gamma0[i] = (-dfdg * g) / g0;
         grad.asymmetry[i] = dfdg * dgdD * Dd;
+        grad.asymmetry_sq[i] = dfdg * dgdD * Dq;
         const dfdphi = dfdg * dgdD * D1;
         grad.flux_offset[i] = -dfdphi / P;
         grad.flux_period[i] = (-dfdphi * phi) / P;
@@ -459,11 +465,20 @@ export function fitTuningCurve(points: readonly TuningPoint[], options: TuningFi
   let sigmaAll = nGiven > 0 ? 0 : noise0;
   const sigmaOf = (i: number) => sigmaGiven[i] ?? (nGiven > 0 ? medianGiven : sigmaAll);
 
-  const runFit = (s: Start, covariance: boolean, holdD = false): FitResult => {
+  /**
+   * One bounded fit from a start. `search` fits d² (asymmetry_sq) instead of d: f depends on d only
+   * through d², so in d the point d = 0 is stationary (∂f/∂d = 0 there) and a fit that reaches
+   * the bound, or starts on it, can never leave it again; in d² the bound is an ordinary one with
+   * a non-zero gradient. The reported fit is polished in d (contract name, covariance in d).
+   */
+  const runFit = (s: Start, covariance: boolean, holdD = false, search = false): FitResult => {
+    const d0 = holdD ? 0 : Math.min(Math.max(s.d, 0), 1);
     const spec: ParameterSpec[] = [
       { name: 'f0_hz', value: s.f0, min: 0.5 * fMax, max: 20 * fMax, diffScale: 1e-3 * fMax },
       { name: 'gamma0', value: Math.min(Math.max(s.gamma0, 1e-6), GAMMA0_MAX), min: 1e-9, max: GAMMA0_MAX, diffScale: 1e-3 },
-      { name: 'asymmetry', value: holdD ? 0 : Math.min(Math.max(s.d, 0), 1), min: 0, max: 1, vary: !holdD, diffScale: 1e-3 },
+      search && !holdD
+        ? { name: 'asymmetry_sq', value: d0 * d0, min: 0, max: 1, diffScale: 1e-3 }
+        : { name: 'asymmetry', value: d0, min: 0, max: 1, vary: !holdD, diffScale: 1e-3 },
       { name: 'flux_period', value: s.period, min: (2 * span) / Math.max(n - 1, 1), max: 100 * span, diffScale: 1e-3 * span },
       { name: 'flux_offset', value: s.offset, min: centre - 50 * span, max: centre + 50 * span, diffScale: 1e-3 * span },
       { name: 'cs_over_cr', value: csFixed, min: 0, max: 100, vary: fitCs, diffScale: 1e-3 },
@@ -485,18 +500,11 @@ export function fitTuningCurve(points: readonly TuningPoint[], options: TuningFi
     return leastSquares(residual, spec, { loss, fScale, computeCovariance: covariance }, jacobian);
   };
 
-  const nStarts = Math.max(1, Math.floor(options.starts ?? 6));
-  // keep the best start per (rounded) period and d so the refined set is not six copies of one guess
-  const chosen: Start[] = [];
-  for (const s of starts) {
-    if (chosen.length >= nStarts) break;
-    const dup = chosen.some((c) => Math.abs(c.period / s.period - 1) < 0.02 && Math.abs(c.d - s.d) < 0.01);
-    if (!dup) chosen.push(s);
-  }
+  const chosen = chooseStarts(starts, Math.max(1, Math.floor(options.starts ?? 6)));
   let best: FitResult | null = null;
   let bestCost = Infinity;
   for (const s of chosen) {
-    const r = runFit(s, false);
+    const r = runFit(s, false, false, true);
     const c = robustCost(r.residuals, loss, fScale);
     if (r.residuals.length === n && c < bestCost) {
       bestCost = c;
@@ -505,14 +513,15 @@ export function fitTuningCurve(points: readonly TuningPoint[], options: TuningFi
   }
   if (!best) return failure('every start failed to evaluate', chosen[0]);
   const valuesOf = (r: FitResult): Start => ({
-    f0: r.params.f0_hz.value, gamma0: r.params.gamma0.value, d: r.params.asymmetry.value,
+    f0: r.params.f0_hz.value, gamma0: r.params.gamma0.value,
+    d: r.params.asymmetry_sq ? Math.sqrt(r.params.asymmetry_sq.value) : r.params.asymmetry.value,
     period: r.params.flux_period.value, offset: r.params.flux_offset.value, score: 0,
   });
 
   // σ from the residuals of the best start when none was given, then the final polish
   if (nGiven === 0) {
     const resHz = best.residuals.map((r) => r * sigmaAll);
-    sigmaAll = Math.max(robustSigma(resHz), 1e-12 * fMax);
+    sigmaAll = Math.max(residualScale(resHz, nvary), 1e-12 * fMax);
   }
   const polished = valuesOf(best);
   polished.offset = offsetNearestCentre(polished.offset, polished.period, centre);
@@ -545,7 +554,7 @@ export function fitTuningCurve(points: readonly TuningPoint[], options: TuningFi
   // per-point results and the outlier rule
   const { f: fm } = tuningModelWithGradient(bias, fit.params ? Object.fromEntries(Object.entries(fit.params).map(([k, v]) => [k, v.value])) : {}, model, false);
   const wres = fit.residuals;
-  const sRob = Math.max(robustSigma(wres), 1e-300);
+  const sRob = outlierScale(wres, fit.nvarys, nGiven > 0);
   const outliers: number[] = [];
   const pts: TuningPointOut[] = bias.map((b, i) => {
     const residual = fr[i] - fm[i];
@@ -635,6 +644,8 @@ export function fitTuningCurve(points: readonly TuningPoint[], options: TuningFi
     );
   }
   if (outliers.length > 0) warnings.push(`${outliers.length} point(s) flagged as outliers (|r| > 5 robust σ)`);
+  const goodness = goodnessWarning(fit.redchi, nGiven > 0, 'sigmaHz');
+  if (goodness) warnings.push(goodness);
 
   // a fit that explains nothing is not a calibration
   let success = fit.success;

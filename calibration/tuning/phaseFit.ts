@@ -19,8 +19,8 @@ import type { FitResult, JacobianFunction, Loss, ParameterSpec } from '../fit/ty
 import { effectiveDelayDerivatives, fluxFromBias, HYSTERESIS_BETA_L, screeningParameter } from '../squid/model';
 import { FLUX_QUANTUM } from '../constants';
 import {
-  dominantPeriod, median, noiseFromSecondDifferences, offsetNearestCentre, orderByBias, requireFinite, robustCost,
-  robustSigma, runningMedian, TuningInputError, unwrapPhase, weightedLine, wrapToPi,
+  chooseStarts, dominantPeriod, goodnessWarning, median, noiseFromSecondDifferences, offsetNearestCentre, orderByBias, outlierScale,
+  requireFinite, residualScale, robustCost, robustSigma, runningMedian, TuningInputError, unwrapPhase, weightedLine, wrapToPi,
 } from './common';
 import type { TuningParamValue } from './fitTuning';
 
@@ -97,9 +97,14 @@ export function phaseModelWithGradient(bias: ArrayLike<number>, p: Readonly<Reco
   const n = bias.length;
   const th = new Float64Array(n);
   const grad = wantGrad
-    ? { tau_eff0_s: new Float64Array(n), asymmetry: new Float64Array(n), flux_period: new Float64Array(n), flux_offset: new Float64Array(n), theta0_rad: new Float64Array(n) }
+    ? {
+        tau_eff0_s: new Float64Array(n), asymmetry: new Float64Array(n), asymmetry_sq: new Float64Array(n),
+        flux_period: new Float64Array(n), flux_offset: new Float64Array(n), theta0_rad: new Float64Array(n),
+      }
     : null;
-  const { tau_eff0_s: tau, asymmetry: d, flux_period: P, flux_offset: o, theta0_rad: t0 } = p;
+  const { tau_eff0_s: tau, flux_period: P, flux_offset: o, theta0_rad: t0 } = p;
+  // the search may carry d² (asymmetry_sq) instead of d, see fitTuning.ts runFit
+  const d = p.asymmetry_sq !== undefined ? Math.sqrt(Math.max(p.asymmetry_sq, 0)) : p.asymmetry;
   for (let i = 0; i < n; i++) {
     const phi = (bias[i] - o) / P;
     const cp = Math.cos(Math.PI * phi);
@@ -111,7 +116,8 @@ export function phaseModelWithGradient(bias: ArrayLike<number>, p: Readonly<Reco
       const s3 = s / D; // D^{-3/2}
       const D1 = -Math.PI * (1 - d * d) * Math.sin(2 * Math.PI * phi);
       grad.tau_eff0_s[i] = -2 * omega * s;
-      grad.asymmetry[i] = 2 * omega * tau * d * sp * sp * s3;
+      grad.asymmetry_sq[i] = omega * tau * sp * sp * s3;
+      grad.asymmetry[i] = 2 * d * grad.asymmetry_sq[i];
       const dthdphi = omega * tau * D1 * s3;
       grad.flux_offset[i] = -dthdphi / P;
       grad.flux_period[i] = (-dthdphi * phi) / P;
@@ -210,10 +216,14 @@ export function fitPhaseVsFlux(points: readonly PhasePoint[], options: PhaseFitO
   let sigmaAll = nGiven ? 0 : noise0;
   const sigmaOf = (i: number) => sg[i] ?? (nGiven ? medGiven : sigmaAll);
   const tauScale = Math.max(starts[0].tau, 1e-15);
-  const runFit = (s: PhaseStart, covariance: boolean, holdD = false): FitResult => {
+  // search = true fits d² instead of d (d = 0 is a stationary bound in d; see fitTuning.ts runFit)
+  const runFit = (s: PhaseStart, covariance: boolean, holdD = false, search = false): FitResult => {
+    const d0 = holdD ? 0 : Math.min(Math.max(s.d, 0), 1);
     const spec: ParameterSpec[] = [
       { name: 'tau_eff0_s', value: s.tau, min: 0, max: 1e3 * tauScale, diffScale: 1e-3 * tauScale },
-      { name: 'asymmetry', value: holdD ? 0 : s.d, min: 0, max: 1, vary: !holdD, diffScale: 1e-3 },
+      search && !holdD
+        ? { name: 'asymmetry_sq', value: d0 * d0, min: 0, max: 1, diffScale: 1e-3 }
+        : { name: 'asymmetry', value: d0, min: 0, max: 1, vary: !holdD, diffScale: 1e-3 },
       { name: 'flux_period', value: s.period, min: (2 * span) / Math.max(n - 1, 1), max: 100 * span, diffScale: 1e-3 * span },
       { name: 'flux_offset', value: s.offset, min: centre - 50 * span, max: centre + 50 * span, diffScale: 1e-3 * span },
       { name: 'theta0_rad', value: s.theta0, min: -1e4, max: 1e4, diffScale: 1e-3 },
@@ -233,15 +243,11 @@ export function fitPhaseVsFlux(points: readonly PhasePoint[], options: PhaseFitO
     };
     return leastSquares(residual, spec, { loss, fScale, computeCovariance: covariance }, jacobian);
   };
-  const chosen: PhaseStart[] = [];
-  for (const s of starts) {
-    if (chosen.length >= Math.max(1, Math.floor(options.starts ?? 5))) break;
-    if (!chosen.some((c) => Math.abs(c.period / s.period - 1) < 0.02 && Math.abs(c.d - s.d) < 0.01)) chosen.push(s);
-  }
+  const chosen = chooseStarts(starts, Math.max(1, Math.floor(options.starts ?? 5)));
   let best: FitResult | null = null;
   let bestCost = Infinity;
   for (const s of chosen) {
-    const r = runFit(s, false);
+    const r = runFit(s, false, false, true);
     const c = robustCost(r.residuals, loss, fScale);
     if (r.residuals.length === n && c < bestCost) {
       best = r;
@@ -250,10 +256,12 @@ export function fitPhaseVsFlux(points: readonly PhasePoint[], options: PhaseFitO
   }
   if (!best) return failure('every start failed to evaluate');
   const valuesOf = (r: FitResult): PhaseStart => ({
-    tau: r.params.tau_eff0_s.value, d: r.params.asymmetry.value, period: r.params.flux_period.value,
+    tau: r.params.tau_eff0_s.value,
+    d: r.params.asymmetry_sq ? Math.sqrt(r.params.asymmetry_sq.value) : r.params.asymmetry.value,
+    period: r.params.flux_period.value,
     offset: r.params.flux_offset.value, theta0: wrapToPi(r.params.theta0_rad.value), score: 0,
   });
-  if (!nGiven) sigmaAll = Math.max(robustSigma(best.residuals.map((r) => r * sigmaAll)), 1e-9);
+  if (!nGiven) sigmaAll = Math.max(residualScale(best.residuals.map((r) => r * sigmaAll), nvary), 1e-9);
   const pol = valuesOf(best);
   pol.offset = offsetNearestCentre(pol.offset, pol.period, centre);
   let fit = runFit(symmetric ? { ...pol, d: 0 } : pol, true, symmetric);
@@ -274,7 +282,7 @@ export function fitPhaseVsFlux(points: readonly PhasePoint[], options: PhaseFitO
   const line = { tauEff0S: v.tau_eff0_s, asymmetry: v.asymmetry, period: periodSign * v.flux_period, offset: v.flux_offset, theta0Rad: theta0, probeFrequencyHz: fp };
   const { th } = phaseModelWithGradient(bias, v, omega, false);
   const wres = fit.residuals;
-  const sRob = Math.max(robustSigma(wres), 1e-300);
+  const sRob = outlierScale(wres, fit.nvarys, nGiven > 0);
   const outliers: number[] = [];
   const pts: PhasePointOut[] = bias.map((b, i) => {
     const residual = wrapToPi(ph[i] - th[i]);
@@ -320,6 +328,8 @@ export function fitPhaseVsFlux(points: readonly PhasePoint[], options: PhaseFitO
     }
   }
   if (outliers.length) warnings.push(`${outliers.length} point(s) flagged as outliers (|r| > 5 robust σ)`);
+  const goodness = goodnessWarning(fit.redchi, nGiven > 0, 'sigmaRad');
+  if (goodness) warnings.push(goodness);
   let success = fit.success;
   let message = fit.message;
   const swing = Math.max(...th) - Math.min(...th);
