@@ -36,6 +36,7 @@
  * All parameters fixed: the statistics are evaluated at the given values, success=true.
  */
 import { choleskyDecompose, choleskySolve, invertSymmetricPositiveDefinite } from './linalg';
+import { LOSSES, rhoPrime, robustCost } from './loss';
 import type {
   FitResult,
   FittedParameter,
@@ -69,50 +70,6 @@ const LAMBDA_MAX = 1e30;
  * entering only as its square, sitting at 0) could never be damped again and the loop would spin.
  */
 const LAMBDA_MIN = 1e-20;
-
-const LOSSES: readonly Loss[] = ['linear', 'soft_l1', 'huber', 'cauchy'];
-
-/** ρ(z) of the robust loss (z = (r/fScale)²). */
-function rho(loss: Loss, z: number): number {
-  switch (loss) {
-    case 'linear':
-      return z;
-    case 'soft_l1':
-      return 2 * (Math.sqrt(1 + z) - 1);
-    case 'huber':
-      return z <= 1 ? z : 2 * Math.sqrt(z) - 1;
-    case 'cauchy':
-      return Math.log1p(z);
-  }
-}
-
-/** ρ′(z): the weight a residual gets in the reweighted problem. */
-function rhoPrime(loss: Loss, z: number): number {
-  switch (loss) {
-    case 'linear':
-      return 1;
-    case 'soft_l1':
-      return 1 / Math.sqrt(1 + z);
-    case 'huber':
-      return z <= 1 ? 1 : 1 / Math.sqrt(z);
-    case 'cauchy':
-      return 1 / (1 + z);
-  }
-}
-
-function robustCost(r: Float64Array, loss: Loss, fScale: number): number {
-  let c = 0;
-  if (loss === 'linear') {
-    for (let i = 0; i < r.length; i++) c += r[i] * r[i];
-    return 0.5 * c;
-  }
-  const f2 = fScale * fScale;
-  for (let i = 0; i < r.length; i++) {
-    const u = r[i] / fScale;
-    c += rho(loss, u * u);
-  }
-  return 0.5 * f2 * c;
-}
 
 function sumSquares(r: Float64Array): number {
   let c = 0;

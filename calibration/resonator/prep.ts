@@ -4,6 +4,7 @@
  * its refinement by circle-fit quality, centred-circle phase and initial guesses.
  */
 import { fitCirclePratt, type CircleFit } from './circle';
+import { medianInPlace as median, secondDifferenceSigma } from '../util/stats';
 
 export const MIN_POINTS = 20;
 
@@ -25,41 +26,6 @@ export function validateTrace(freqHz: ArrayLike<number>, re: ArrayLike<number>, 
   if (!(freqHz[0] > 0)) throw new Error(`resonator: frequencies must be positive (freqHz[0] = ${freqHz[0]})`);
 }
 
-/** Median by quickselect (O(n)); reorders `a`. */
-function median(a: Float64Array): number {
-  const n = a.length;
-  const select = (k: number): number => {
-    let lo = 0;
-    let hi = n - 1;
-    while (hi > lo) {
-      const pivot = a[(lo + hi) >> 1];
-      let i = lo;
-      let j = hi;
-      while (i <= j) {
-        while (a[i] < pivot) i++;
-        while (a[j] > pivot) j--;
-        if (i <= j) {
-          const t = a[i];
-          a[i] = a[j];
-          a[j] = t;
-          i++;
-          j--;
-        }
-      }
-      if (k <= j) hi = j;
-      else if (k >= i) lo = i;
-      else return a[k];
-    }
-    return a[k];
-  };
-  const m = n >> 1;
-  if (n % 2) return select(m);
-  const upper = select(m);
-  let lower = -Infinity;
-  for (let i = 0; i < m; i++) if (a[i] > lower) lower = a[i];
-  return 0.5 * (lower + upper);
-}
-
 /**
  * Noise per quadrature from second differences, σ = 1.4826·MAD/√6 (for white noise
  * Var(z_{i+1} − 2z_i + z_{i−1}) = 6σ²; 1.4826·MAD estimates a Gaussian σ robustly, common practice).
@@ -78,20 +44,9 @@ export function noiseFromSecondDifferences(
     pick.length = 0;
     for (let i = 1; i < n - 1; i++) pick.push(i);
   }
-  const dr = new Float64Array(pick.length);
-  const di = new Float64Array(pick.length);
-  for (let k = 0; k < pick.length; k++) {
-    const i = pick[k];
-    dr[k] = re[i + 1] - 2 * re[i] + re[i - 1];
-    di[k] = im[i + 1] - 2 * im[i] + im[i - 1];
-  }
-  const mad = (a: Float64Array) => {
-    const m = median(a);
-    for (let k = 0; k < a.length; k++) a[k] = Math.abs(a[k] - m);
-    return median(a);
-  };
-  const s = (1.4826 / Math.sqrt(6)) * Math.sqrt(0.5 * (mad(dr) ** 2 + mad(di) ** 2));
-  return s;
+  const sr = secondDifferenceSigma(re, pick);
+  const si = secondDifferenceSigma(im, pick);
+  return Math.sqrt(0.5 * (sr * sr + si * si));
 }
 
 /** Unwrapped phase of z. */

@@ -111,7 +111,7 @@ export function tuningResultToCalibrationJson(r: TuningFitResult, extras: Calibr
         flux: 'phi0 = (bias - flux_offset) / flux_period',
         flux_offset: 'bias of the frequency maximum nearest the sweep centre',
         flux_period_sign: 'not observable from a tuning curve (even in flux); sign as requested, default positive',
-        outliers: '|residual/sigma| > 5 x 1.4826 MAD of the weighted residuals and |residual| > 1e-8 f0',
+        outliers: '|residual/sigma| > 5 s and |residual| > 1e-8 f0; s = dof-corrected robust scale of the weighted residuals (MAD, then inlier RMS), at least 1 when sigma is given',
       },
     }) as Record<string, unknown>,
     warnings,

@@ -3,7 +3,11 @@
  * statistics, the dominant period of a sampled curve, phase unwrapping, offset convention.
  */
 import FFT from 'fft.js';
-import type { Loss } from '../fit/types';
+import { median, robustSigma, secondDifferenceSigma } from '../util/stats';
+
+// The engine's own loss and the shared robust statistics, re-exported for the fits and callers.
+export { rho, robustCost } from '../fit/loss';
+export { median, robustSigma } from '../util/stats';
 
 /** Bad input: says what is wrong and at which point (0-based index into the given points). */
 export class TuningInputError extends Error {
@@ -11,20 +15,6 @@ export class TuningInputError extends Error {
     super(message);
     this.name = 'TuningInputError';
   }
-}
-
-export function median(values: ArrayLike<number>): number {
-  const a = Array.from(values).sort((p, q) => p - q);
-  const n = a.length;
-  if (n === 0) return 0;
-  return n % 2 ? a[(n - 1) / 2] : 0.5 * (a[n / 2 - 1] + a[n / 2]);
-}
-
-/** 1.4826·MAD: the standard deviation of Gaussian data, insensitive to a few outliers (common practice). */
-export function robustSigma(values: ArrayLike<number>): number {
-  const m = median(values);
-  const dev = Array.from(values, (v) => Math.abs(v - m));
-  return 1.4826 * median(dev);
 }
 
 /**
@@ -97,15 +87,9 @@ export function goodnessWarning(redchi: number, sigmaGiven: boolean, sigmaName: 
   return `χ²_red = ${redchi.toFixed(2)} with the given ${sigmaName}: the scatter is about ${scale.toFixed(1)}× the stated uncertainty; standard errors are scaled up by that factor`;
 }
 
-/**
- * Noise estimate of a smooth sampled curve from second differences: for white noise σ,
- * y[i+1] − 2y[i] + y[i−1] has standard deviation σ·√6. Curvature inflates it (an upper bound).
- */
+/** σ of a smooth sampled curve from its second differences (util/stats.ts secondDifferenceSigma). */
 export function noiseFromSecondDifferences(y: ArrayLike<number>): number {
-  const d: number[] = [];
-  for (let i = 1; i + 1 < y.length; i++) d.push(y[i + 1] - 2 * y[i] + y[i - 1]);
-  if (d.length === 0) return 0;
-  return (1.4826 * median(d.map(Math.abs))) / Math.sqrt(6);
+  return secondDifferenceSigma(y);
 }
 
 /** Running median over a window of 2h+1 points (kills isolated spurious picks before peak finding). */
@@ -124,30 +108,6 @@ export function runningMedian(y: ArrayLike<number>, h = 2): number[] {
 /** Order of the points by increasing bias (ties keep file order). */
 export function orderByBias(bias: ArrayLike<number>): number[] {
   return Array.from({ length: bias.length }, (_, i) => i).sort((a, b) => bias[a] - bias[b] || a - b);
-}
-
-/** Robust loss ρ(z), z = (r/fScale)², as documented in calibration/fit/types.ts. */
-export function rho(loss: Loss, z: number): number {
-  switch (loss) {
-    case 'linear':
-      return z;
-    case 'soft_l1':
-      return 2 * (Math.sqrt(1 + z) - 1);
-    case 'huber':
-      return z <= 1 ? z : 2 * Math.sqrt(z) - 1;
-    case 'cauchy':
-      return Math.log1p(z);
-  }
-}
-
-/** Robust cost ½·fScale²·Σρ((r/fScale)²), the quantity a robust least-squares fit minimises. */
-export function robustCost(residuals: ArrayLike<number>, loss: Loss, fScale: number): number {
-  let s = 0;
-  for (let i = 0; i < residuals.length; i++) {
-    const r = residuals[i];
-    s += Number.isFinite(r) ? rho(loss, (r / fScale) ** 2) : Infinity;
-  }
-  return 0.5 * fScale * fScale * s;
 }
 
 export interface PeriodEstimate {
