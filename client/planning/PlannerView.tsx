@@ -27,7 +27,7 @@ import { dbm, fixed, hz, rate, sci } from './format';
 import { OperatingPointChart, SpectrumChart } from './PlanCharts';
 import { PumpLineCard } from './PumpLineCard';
 import { RankedPoints } from './RankedPoints';
-import { buildRequest, calibratedRange, calibrationQ, cavityAllowed, defaultBias, defaultLinePumpGHz, type PlannerInputs } from './request';
+import { buildRequest, calibratedRange, fillFromPumpLine, calibrationQ, cavityAllowed, defaultBias, defaultLinePumpGHz, type PlannerInputs } from './request';
 import { ResultsCard } from './ResultsCard';
 import { ThresholdGauge } from './ThresholdGauge';
 import type { Plan, PlanResult } from './types';
@@ -134,8 +134,10 @@ function Planner({ deviceId, deviceName, cal, fitVersion }: { deviceId: number; 
   const set = useCallback(<K extends keyof PlannerInputs>(k: K, v: PlannerInputs[K]) => setInputs((s) => ({ ...s, [k]: v })), []);
   const setBias = useCallback((b: number) => setInputs((s) => ({ ...s, bias: Math.min(hi, Math.max(lo, b)) })), [lo, hi]);
 
-  const { request, errors } = useMemo(() => buildRequest(inputs, pumpLine.data), [inputs, pumpLine.data]);
-  const live = useLivePlan(cal, request, dragging);
+  const { request, errors } = useMemo(() => buildRequest(inputs), [inputs]);
+  // The live plan computes with the request as the server will complete it from the pump line.
+  const filled = useMemo(() => (request ? fillFromPumpLine(cal, request, pumpLine.data) : null), [cal, request, pumpLine.data]);
+  const live = useLivePlan(cal, filled?.request ?? null, dragging);
   const result = live.result;
   const chartBias = useDeferredValue(inputs.bias);
   const chartAmp = useDeferredValue(result?.pump_amplitude_phi0 ?? null);
@@ -168,7 +170,7 @@ function Planner({ deviceId, deviceName, cal, fitVersion }: { deviceId: number; 
     setSaved(null);
     const body = { deviceId, request, note: note.trim() || undefined };
     // The live figures at the full draw count, for the comparison with what the server stores.
-    const client = computePlan(cal, { ...request }, DEFAULT_DRAWS).result;
+    const client = filled ? computePlan(cal, filled.request, DEFAULT_DRAWS).result : null;
     save.mutate(body, {
       onSuccess: (plan) => {
         setSaved({ plan, differences: client ? resultDifferences(plan.result, client) : ['predicted_pair_rate'] });
@@ -356,9 +358,16 @@ function Planner({ deviceId, deviceName, cal, fitVersion }: { deviceId: number; 
       aside={<Button small kind="ghost" label={showJson ? 'Hide' : 'Show'} testID="plan-request-toggle" onPress={() => setShowJson((x) => !x)} />}
     >
       {showJson ? (
-        <Text variant="monoSmall" selectable testID="plan-request-json" style={{ color: colors.ink }}>
-          {request ? JSON.stringify(request, null, 2) : 'Fix the inputs above first.'}
-        </Text>
+        <View style={{ gap: space.xs }}>
+          <Text variant="monoSmall" selectable testID="plan-request-json" style={{ color: colors.ink }}>
+            {request ? JSON.stringify(request, null, 2) : 'Fix the inputs above first.'}
+          </Text>
+          {filled && filled.filled.length ? (
+            <Text variant="caption" testID="plan-request-filled">
+              {`From the pump line: ${filled.filled.map((k) => `${k} = ${JSON.stringify(filled.request[k as keyof typeof filled.request])}`).join(', ')}`}
+            </Text>
+          ) : null}
+        </View>
       ) : (
         <Text variant="caption">What the planner computes with (and what Save sends), for scripts and the command line.</Text>
       )}

@@ -1,6 +1,6 @@
 // Planner inputs as typed on the screen → the core's PlanRequest, plus the calibrated bias range.
 import type { CalibrationJson } from '@/shared/api/calibration';
-import { qualityFactorsAtBias } from '@/calibration/planner/plan';
+import { planFromCalibration, qualityFactorsAtBias } from '@/calibration/planner';
 import { parseNumber } from './format';
 import type { PlanMode, PlanRequest, PumpLine } from './types';
 
@@ -70,20 +70,65 @@ export function calibrationQ(cal: CalibrationJson, bias: number): { ql: number; 
   return qualityFactorsAtBias(cal.traces, bias);
 }
 
-/** The stored pump line as request fields (the server fills the same ones when a request leaves them out). */
-export function pumpLineFields(line: PumpLine | null | undefined, mode: PlanMode): Partial<PlanRequest> {
-  if (!line) return {};
-  const f: Partial<PlanRequest> = {
-    coldStageLimitW: line.coldStageLimitW,
-    pumpLineZ0Ohm: line.pumpLineZ0Ohm,
+/** δΦ_th at an operating point under the request's own pump settings, from the core (no draws). */
+function thresholdAt(cal: CalibrationJson, req: PlanRequest, point: { fluxPhi0?: number; bias?: number }, resonantPump: boolean): number | null {
+  const probe: PlanRequest = {
+    ...req,
+    fluxPhi0: point.fluxPhi0,
+    bias: point.bias,
+    targetPairRate: 1e-6, // far below threshold: only threshold_amplitude_phi0 is read
+    targetGainDb: undefined,
+    pumpPeriod: undefined,
+    attenuationDb: undefined,
+    stageNames: undefined,
+    thresholdPowerDbm: undefined,
+    uncertaintyDraws: 0,
   };
-  if (line.attenuationDb.length > 0) {
-    f.attenuationDb = line.attenuationDb;
-    if (line.stageNames.length === line.attenuationDb.length) f.stageNames = line.stageNames;
+  if (resonantPump) {
+    probe.pumpFrequencyHz = undefined;
+    probe.detuningHz = undefined;
   }
-  if (line.dcPeriod !== null) f.pumpPeriod = line.dcPeriod;
-  else if (line.thresholdPowerDbm !== null && mode === 'cavity') f.thresholdPowerDbm = line.thresholdPowerDbm;
-  return f;
+  try {
+    const t = planFromCalibration(cal, probe).threshold_amplitude_phi0;
+    return t !== null && Number.isFinite(t) && t > 0 ? t : null;
+  } catch {
+    return null;
+  }
+}
+
+/**
+ * The request as the server completes it from the stored pump line (the rule of
+ * server/features/planning/compute.ts fillFromPumpLine, mirrored so the live figures equal what a
+ * save stores): a dc period is preferred to a measured threshold; a threshold measured at bias b_m
+ * becomes P_th = P_th,meas·(δΦ_th(op)/δΦ_th(b_m))²; then the attenuators, limit and impedance.
+ */
+export function fillFromPumpLine(cal: CalibrationJson, req: PlanRequest, pl: PumpLine | null | undefined): { request: PlanRequest; filled: string[] } {
+  if (!pl) return { request: req, filled: [] };
+  const out: PlanRequest = { ...req };
+  const filled: string[] = [];
+  const set = <K extends keyof PlanRequest>(k: K, v: PlanRequest[K]) => {
+    out[k] = v;
+    filled.push(k);
+  };
+  if (out.pumpPeriod === undefined && out.thresholdPowerDbm === undefined) {
+    if (pl.dcPeriod !== null) {
+      set('pumpPeriod', pl.dcPeriod);
+    } else if (pl.thresholdPowerDbm !== null && pl.thresholdBias !== null && out.mode === 'cavity') {
+      const op = out.fluxPhi0 !== undefined ? { fluxPhi0: out.fluxPhi0 } : { bias: out.bias };
+      const atOp = thresholdAt(cal, out, op, false);
+      const atMeas = thresholdAt(cal, out, { bias: pl.thresholdBias }, true);
+      if (atOp !== null && atMeas !== null) set('thresholdPowerDbm', pl.thresholdPowerDbm + 20 * Math.log10(atOp / atMeas));
+    }
+  }
+  if (out.pumpPeriod !== undefined || out.thresholdPowerDbm !== undefined) {
+    if (out.attenuationDb === undefined && pl.attenuationDb.length > 0) {
+      set('attenuationDb', [...pl.attenuationDb]);
+      if (out.stageNames === undefined && pl.stageNames.length === pl.attenuationDb.length) set('stageNames', [...pl.stageNames]);
+    }
+    if (out.coldStageLimitW === undefined) set('coldStageLimitW', pl.coldStageLimitW);
+    if (out.pumpPeriod !== undefined && out.pumpLineZ0Ohm === undefined) set('pumpLineZ0Ohm', pl.pumpLineZ0Ohm);
+  }
+  return { request: out, filled };
 }
 
 function positive(s: string, what: string, errors: InputErrors, key: keyof InputErrors, scale = 1): number | undefined {
@@ -100,10 +145,13 @@ function positive(s: string, what: string, errors: InputErrors, key: keyof Input
   return x * scale;
 }
 
-/** Builds the request; field problems come back per input (the planner is not called with them). */
-export function buildRequest(inp: PlannerInputs, line: PumpLine | null | undefined): { request: PlanRequest | null; errors: InputErrors } {
+/**
+ * Builds the request as typed (what Save and preview send; the server adds the pump line's fields);
+ * field problems come back per input and the planner is not called with them.
+ */
+export function buildRequest(inp: PlannerInputs): { request: PlanRequest | null; errors: InputErrors } {
   const errors: InputErrors = {};
-  const req: PlanRequest = { mode: inp.mode, bias: inp.bias, ...pumpLineFields(line, inp.mode) };
+  const req: PlanRequest = { mode: inp.mode, bias: inp.bias };
   const t = parseNumber(inp.target);
   const gain = inp.mode === 'cavity' && inp.targetKind === 'gain';
   if (t === null) errors.target = gain ? 'Give the target gain in dB' : 'Give the target pair rate in pairs/s';
