@@ -3,6 +3,8 @@
  * statistics, the dominant period of a sampled curve, phase unwrapping, offset convention.
  */
 import FFT from 'fft.js';
+import type { FitResult, Loss, ParameterSpec } from '../fit/types';
+import { robustCost as engineCost } from '../fit/loss';
 import { median, robustSigma, secondDifferenceSigma } from '../util/stats';
 
 // The engine's own loss and the shared robust statistics, re-exported for the fits and callers.
@@ -67,6 +69,127 @@ export function chooseStarts<S extends { period: number; d: number }>(ranked: re
     if (!chosen.some((c) => samePeriod(c, s) && Math.abs(c.d - s.d) < 0.01)) chosen.push(s);
   }
   return chosen;
+}
+
+/** Per-point result of a flux fit (tuning curve or phase), in the caller's order. */
+export interface FittedPointOut {
+  index: number;
+  bias: number;
+  flux_phi0: number;
+  measured: number;
+  sigma: number | null;
+  /** Model value (phase fit: shifted by whole turns to the branch nearest the measured value). */
+  model: number;
+  /** measured − model (phase fit: wrapped into (−π, π]) */
+  residual: number;
+  /** residual/σ used by the fit */
+  weighted_residual: number;
+  robust_weight: number | null;
+  outlier: boolean;
+}
+
+/**
+ * The asymmetry entry of a parameter table. `search` carries d² (asymmetry_sq) instead of d:
+ * f depends on d only through d², so in d the bound d = 0 is stationary (∂f/∂d = 0 there) and
+ * a fit that reaches it, or starts on it, can never leave it again; in d² the bound is an ordinary
+ * one with a non-zero gradient. Reported fits are polished in d (contract name, covariance in d).
+ */
+export function asymmetrySpec(d: number, holdD: boolean, search: boolean): ParameterSpec {
+  const d0 = holdD ? 0 : Math.min(Math.max(d, 0), 1);
+  return search && !holdD
+    ? { name: 'asymmetry_sq', value: d0 * d0, min: 0, max: 1, diffScale: 1e-3 }
+    : { name: 'asymmetry', value: d0, min: 0, max: 1, vary: !holdD, diffScale: 1e-3 };
+}
+
+/** d of a fit made with asymmetrySpec (either parametrisation). */
+export function asymmetryOf(r: FitResult): number {
+  const q = r.params.asymmetry_sq;
+  return q ? Math.sqrt(Math.max(q.value, 0)) : r.params.asymmetry.value;
+}
+
+export interface FluxStart {
+  d: number;
+  period: number;
+  offset: number;
+}
+
+export interface MultiStartFit<S extends FluxStart> {
+  starts: readonly S[];
+  n: number;
+  loss: Loss;
+  fScale: number;
+  symmetric: boolean;
+  centre: number;
+  /** One fit from a start; `search` as in asymmetrySpec. */
+  run: (s: S, covariance: boolean, holdD: boolean, search: boolean) => FitResult;
+  /** The start a fit ended at (d from asymmetryOf). */
+  valuesOf: (r: FitResult) => S;
+  /** Called with the best search fit before the polish (to estimate σ from its residuals). */
+  onBest?: (best: FitResult) => void;
+  warnings: string[];
+}
+
+/**
+ * Multi-start refinement shared by the tuning and phase fits: every start is refined in d²
+ * (asymmetrySpec), the lowest robust cost wins, the winner's offset moves to the maximum nearest
+ * the sweep centre and it is polished in d with the covariance. A symmetric fit is reached by
+ * continuation (search with d free, then d := 0: with d = 0 from the outset a slightly wrong
+ * period drops points onto the lobe-edge cusp and LM stalls). When d ends at 0 (f is flat in d
+ * there, JᵀJ singular) the errors of the other parameters come from a fit with d held at 0; the
+ * statistics keep the free d counted. null when no start could be evaluated.
+ */
+export function refineStarts<S extends FluxStart>(o: MultiStartFit<S>): { fit: FitResult; best: FitResult } | null {
+  let best: FitResult | null = null;
+  let bestCost = Infinity;
+  for (const s of o.starts) {
+    const r = o.run(s, false, false, true);
+    const c = engineCost(r.residuals, o.loss, o.fScale);
+    if (r.residuals.length === o.n && c < bestCost) {
+      bestCost = c;
+      best = r;
+    }
+  }
+  if (!best) return null;
+  o.onBest?.(best);
+  const polished = o.valuesOf(best);
+  polished.offset = offsetNearestCentre(polished.offset, polished.period, o.centre);
+  let fit = o.run(o.symmetric ? { ...polished, d: 0 } : polished, true, o.symmetric, false);
+  // the polish starts where the search ended (shifted by whole periods), so it evaluates unless the
+  // model itself fails there; then the search point is polished without the shift
+  if (fit.residuals.length !== o.n) fit = o.run(o.valuesOf(best), true, o.symmetric, false);
+  if (fit.residuals.length !== o.n) return null;
+  if (!o.symmetric && fit.params.asymmetry.value < 1e-6) {
+    const held = o.run({ ...o.valuesOf(fit), d: 0 }, true, true, false);
+    if (held.residuals.length === o.n && held.covariance) {
+      fit = {
+        ...held,
+        nvarys: fit.nvarys, redchi: fit.redchi, aic: fit.aic, bic: fit.bic,
+        params: { ...held.params, asymmetry: { ...fit.params.asymmetry, value: 0, stderr: null, atBound: true } },
+      };
+      o.warnings.push('asymmetry fitted to 0 (its bound): consistent with a symmetric SQUID; no standard error (the model depends on d², flat at d = 0)');
+    }
+  }
+  return { fit, best };
+}
+
+/** Warnings every flux fit gives about its result: strong correlations, parameters on bounds. */
+export function fitQualityWarnings(fit: FitResult, warnings: string[]): void {
+  const names = fit.varyingNames;
+  const corr = fit.correlation;
+  if (corr) {
+    for (let a = 0; a < names.length; a++) {
+      for (let b = a + 1; b < names.length; b++) {
+        const v = corr[a][b];
+        if (Math.abs(v) > 0.95) warnings.push(`strong correlation ${names[a]}–${names[b]}: ${v.toFixed(3)}`);
+      }
+    }
+  } else if (fit.success) {
+    warnings.push('covariance not available (singular or parameters at a bound): no standard errors');
+  }
+  for (const nm of names) {
+    const p = fit.params[nm];
+    if (p.atBound && !(nm === 'asymmetry' && p.value === 0)) warnings.push(`${nm} ended on its bound (${p.value}); its error is not meaningful`);
+  }
 }
 
 /** χ²_red above which a fit with caller-given σ is reported as not describing the data. */

@@ -28,8 +28,9 @@ import {
   lineInductance, resonanceDerivatives, resonanceFrequency, screeningParameter, SquidLineParams, TuningModel,
 } from '../squid/model';
 import {
-  biasQuantity, dominantPeriod, goodnessWarning, median, noiseFromSecondDifferences, offsetNearestCentre, orderByBias, outlierScale,
-  chooseStarts, requireFinite, residualScale, robustCost, robustSigma, runningMedian, TuningInputError, weightedLine,
+  asymmetryOf, asymmetrySpec, biasQuantity, chooseStarts, dominantPeriod, fitQualityWarnings, type FittedPointOut,
+  goodnessWarning, median, noiseFromSecondDifferences, orderByBias, outlierScale, refineStarts, requireFinite,
+  residualScale, robustSigma, runningMedian, TuningInputError, weightedLine,
 } from './common';
 
 export interface TuningPoint {
@@ -77,20 +78,8 @@ export interface TuningParamsOut {
   cs_over_cr: TuningParamValue;
 }
 
-export interface TuningPointOut {
-  index: number;
-  bias: number;
-  flux_phi0: number;
-  measured: number;
-  sigma: number | null;
-  model: number;
-  /** measured − model, Hz */
-  residual: number;
-  /** residual/σ used by the fit */
-  weighted_residual: number;
-  robust_weight: number | null;
-  outlier: boolean;
-}
+/** Per-point result: model and residual in Hz, weighted residual = residual/σ. */
+export type TuningPointOut = FittedPointOut;
 
 export interface ReferenceFluxPoint {
   flux_phi0: number;
@@ -465,20 +454,12 @@ export function fitTuningCurve(points: readonly TuningPoint[], options: TuningFi
   let sigmaAll = nGiven > 0 ? 0 : noise0;
   const sigmaOf = (i: number) => sigmaGiven[i] ?? (nGiven > 0 ? medianGiven : sigmaAll);
 
-  /**
-   * One bounded fit from a start. `search` fits d² (asymmetry_sq) instead of d: f depends on d only
-   * through d², so in d the point d = 0 is stationary (∂f/∂d = 0 there) and a fit that reaches
-   * the bound, or starts on it, can never leave it again; in d² the bound is an ordinary one with
-   * a non-zero gradient. The reported fit is polished in d (contract name, covariance in d).
-   */
+  /** One bounded fit from a start (`search`: d² instead of d, see common.ts asymmetrySpec). */
   const runFit = (s: Start, covariance: boolean, holdD = false, search = false): FitResult => {
-    const d0 = holdD ? 0 : Math.min(Math.max(s.d, 0), 1);
     const spec: ParameterSpec[] = [
       { name: 'f0_hz', value: s.f0, min: 0.5 * fMax, max: 20 * fMax, diffScale: 1e-3 * fMax },
       { name: 'gamma0', value: Math.min(Math.max(s.gamma0, 1e-6), GAMMA0_MAX), min: 1e-9, max: GAMMA0_MAX, diffScale: 1e-3 },
-      search && !holdD
-        ? { name: 'asymmetry_sq', value: d0 * d0, min: 0, max: 1, diffScale: 1e-3 }
-        : { name: 'asymmetry', value: d0, min: 0, max: 1, vary: !holdD, diffScale: 1e-3 },
+      asymmetrySpec(s.d, holdD, search),
       { name: 'flux_period', value: s.period, min: (2 * span) / Math.max(n - 1, 1), max: 100 * span, diffScale: 1e-3 * span },
       { name: 'flux_offset', value: s.offset, min: centre - 50 * span, max: centre + 50 * span, diffScale: 1e-3 * span },
       { name: 'cs_over_cr', value: csFixed, min: 0, max: 100, vary: fitCs, diffScale: 1e-3 },
@@ -501,47 +482,20 @@ export function fitTuningCurve(points: readonly TuningPoint[], options: TuningFi
   };
 
   const chosen = chooseStarts(starts, Math.max(1, Math.floor(options.starts ?? 6)));
-  let best: FitResult | null = null;
-  let bestCost = Infinity;
-  for (const s of chosen) {
-    const r = runFit(s, false, false, true);
-    const c = robustCost(r.residuals, loss, fScale);
-    if (r.residuals.length === n && c < bestCost) {
-      bestCost = c;
-      best = r;
-    }
-  }
-  if (!best) return failure('every start failed to evaluate', chosen[0]);
-  const valuesOf = (r: FitResult): Start => ({
-    f0: r.params.f0_hz.value, gamma0: r.params.gamma0.value,
-    d: r.params.asymmetry_sq ? Math.sqrt(r.params.asymmetry_sq.value) : r.params.asymmetry.value,
-    period: r.params.flux_period.value, offset: r.params.flux_offset.value, score: 0,
+  const refined = refineStarts({
+    starts: chosen, n, loss, fScale, symmetric, centre, warnings,
+    run: runFit,
+    valuesOf: (r: FitResult): Start => ({
+      f0: r.params.f0_hz.value, gamma0: r.params.gamma0.value, d: asymmetryOf(r),
+      period: r.params.flux_period.value, offset: r.params.flux_offset.value, score: 0,
+    }),
+    // σ from the residuals of the best start when none was given, before the final polish
+    onBest: (best) => {
+      if (nGiven === 0) sigmaAll = Math.max(residualScale(best.residuals.map((r) => r * sigmaAll), nvary), 1e-12 * fMax);
+    },
   });
-
-  // σ from the residuals of the best start when none was given, then the final polish
-  if (nGiven === 0) {
-    const resHz = best.residuals.map((r) => r * sigmaAll);
-    sigmaAll = Math.max(residualScale(resHz, nvary), 1e-12 * fMax);
-  }
-  const polished = valuesOf(best);
-  polished.offset = offsetNearestCentre(polished.offset, polished.period, centre);
-  // a symmetric fit is reached by continuation: the starts refine with d free (with d = 0 from the
-  // outset a slightly wrong period drops points onto the lobe-edge cusp and LM stalls), then d := 0
-  let fit = runFit(symmetric ? { ...polished, d: 0 } : polished, true, symmetric);
-  if (!(fit.residuals.length === n)) fit = best;
-  if (!symmetric && fit.params.asymmetry.value < 1e-6) {
-    // f depends on d², so ∂f/∂d = 0 at d = 0 and the covariance is singular there. Errors of the
-    // other parameters come from the fit with d held at 0; the statistics keep the free d counted.
-    const held = runFit({ ...valuesOf(fit), d: 0 }, true, true);
-    if (held.residuals.length === n && held.covariance) {
-      fit = {
-        ...held,
-        nvarys: fit.nvarys, redchi: fit.redchi, aic: fit.aic, bic: fit.bic,
-        params: { ...held.params, asymmetry: { ...fit.params.asymmetry, value: 0, stderr: null, atBound: true } },
-      };
-      warnings.push('asymmetry fitted to 0 (its bound): consistent with a symmetric SQUID; no standard error (f depends on d², flat at d = 0)');
-    }
-  }
+  if (!refined) return failure('every start failed to evaluate', chosen[0]);
+  const fit = refined.fit;
 
   const f0 = fit.params.f0_hz.value;
   const gamma0 = fit.params.gamma0.value;
@@ -623,21 +577,7 @@ export function fitTuningCurve(points: readonly TuningPoint[], options: TuningFi
       `the data cover only ${coverage.toFixed(2)} Φ0: asymmetry, period and γ0 are correlated; treat their errors with care`,
     );
   }
-  const names = fit.varyingNames;
-  const corr = fit.correlation;
-  if (corr) {
-    for (let a = 0; a < names.length; a++) {
-      for (let b2 = a + 1; b2 < names.length; b2++) {
-        const v = corr[a][b2];
-        if (Math.abs(v) > 0.95) warnings.push(`strong correlation ${names[a]}–${names[b2]}: ${v.toFixed(3)}`);
-      }
-    }
-  } else if (fit.success) {
-    warnings.push('covariance not available (singular or parameters at a bound): no standard errors');
-  }
-  for (const nm of names) {
-    if (fit.params[nm].atBound && !(nm === 'asymmetry' && fit.params[nm].value === 0)) warnings.push(`${nm} ended on its bound (${fit.params[nm].value}); its error is not meaningful`);
-  }
+  fitQualityWarnings(fit, warnings);
   if (model === 'approx' && gamma0 > 0.05) {
     warnings.push(
       `γ0 = ${gamma0.toFixed(3)}: the approx model is off by about π²γ³/12 = ${((Math.PI ** 2 * gamma0 ** 3) / 12).toExponential(1)} relative at the top of the lobe; prefer the exact model`,

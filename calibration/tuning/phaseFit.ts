@@ -19,8 +19,9 @@ import type { FitResult, JacobianFunction, Loss, ParameterSpec } from '../fit/ty
 import { effectiveDelayDerivatives, fluxFromBias, HYSTERESIS_BETA_L, screeningParameter } from '../squid/model';
 import { FLUX_QUANTUM } from '../constants';
 import {
-  chooseStarts, dominantPeriod, goodnessWarning, median, noiseFromSecondDifferences, offsetNearestCentre, orderByBias, outlierScale,
-  requireFinite, residualScale, robustCost, robustSigma, runningMedian, TuningInputError, unwrapPhase, weightedLine, wrapToPi,
+  asymmetryOf, asymmetrySpec, chooseStarts, dominantPeriod, fitQualityWarnings, type FittedPointOut, goodnessWarning,
+  median, noiseFromSecondDifferences, orderByBias, outlierScale, refineStarts, requireFinite, residualScale, robustSigma,
+  runningMedian, TuningInputError, unwrapPhase, weightedLine, wrapToPi,
 } from './common';
 import type { TuningParamValue } from './fitTuning';
 
@@ -53,20 +54,8 @@ export interface PhaseParamsOut {
   theta0_rad: TuningParamValue;
 }
 
-export interface PhasePointOut {
-  index: number;
-  bias: number;
-  flux_phi0: number;
-  measured: number;
-  sigma: number | null;
-  /** Model phase, shifted by whole turns to the branch nearest the measured value. */
-  model: number;
-  /** Wrapped difference measured − model, rad. */
-  residual: number;
-  weighted_residual: number;
-  robust_weight: number | null;
-  outlier: boolean;
-}
+/** Per-point result: phase in rad, model on the branch nearest the measured value, residual wrapped. */
+export type PhasePointOut = FittedPointOut;
 
 export interface PhaseFitResult {
   success: boolean;
@@ -216,14 +205,11 @@ export function fitPhaseVsFlux(points: readonly PhasePoint[], options: PhaseFitO
   let sigmaAll = nGiven ? 0 : noise0;
   const sigmaOf = (i: number) => sg[i] ?? (nGiven ? medGiven : sigmaAll);
   const tauScale = Math.max(starts[0].tau, 1e-15);
-  // search = true fits d² instead of d (d = 0 is a stationary bound in d; see fitTuning.ts runFit)
+  // search = true fits d² instead of d (common.ts asymmetrySpec)
   const runFit = (s: PhaseStart, covariance: boolean, holdD = false, search = false): FitResult => {
-    const d0 = holdD ? 0 : Math.min(Math.max(s.d, 0), 1);
     const spec: ParameterSpec[] = [
       { name: 'tau_eff0_s', value: s.tau, min: 0, max: 1e3 * tauScale, diffScale: 1e-3 * tauScale },
-      search && !holdD
-        ? { name: 'asymmetry_sq', value: d0 * d0, min: 0, max: 1, diffScale: 1e-3 }
-        : { name: 'asymmetry', value: d0, min: 0, max: 1, vary: !holdD, diffScale: 1e-3 },
+      asymmetrySpec(s.d, holdD, search),
       { name: 'flux_period', value: s.period, min: (2 * span) / Math.max(n - 1, 1), max: 100 * span, diffScale: 1e-3 * span },
       { name: 'flux_offset', value: s.offset, min: centre - 50 * span, max: centre + 50 * span, diffScale: 1e-3 * span },
       { name: 'theta0_rad', value: s.theta0, min: -1e4, max: 1e4, diffScale: 1e-3 },
@@ -244,38 +230,19 @@ export function fitPhaseVsFlux(points: readonly PhasePoint[], options: PhaseFitO
     return leastSquares(residual, spec, { loss, fScale, computeCovariance: covariance }, jacobian);
   };
   const chosen = chooseStarts(starts, Math.max(1, Math.floor(options.starts ?? 5)));
-  let best: FitResult | null = null;
-  let bestCost = Infinity;
-  for (const s of chosen) {
-    const r = runFit(s, false, false, true);
-    const c = robustCost(r.residuals, loss, fScale);
-    if (r.residuals.length === n && c < bestCost) {
-      best = r;
-      bestCost = c;
-    }
-  }
-  if (!best) return failure('every start failed to evaluate');
-  const valuesOf = (r: FitResult): PhaseStart => ({
-    tau: r.params.tau_eff0_s.value,
-    d: r.params.asymmetry_sq ? Math.sqrt(r.params.asymmetry_sq.value) : r.params.asymmetry.value,
-    period: r.params.flux_period.value,
-    offset: r.params.flux_offset.value, theta0: wrapToPi(r.params.theta0_rad.value), score: 0,
+  const refined = refineStarts({
+    starts: chosen, n, loss, fScale, symmetric, centre, warnings,
+    run: runFit,
+    valuesOf: (r: FitResult): PhaseStart => ({
+      tau: r.params.tau_eff0_s.value, d: asymmetryOf(r), period: r.params.flux_period.value,
+      offset: r.params.flux_offset.value, theta0: wrapToPi(r.params.theta0_rad.value), score: 0,
+    }),
+    onBest: (best) => {
+      if (!nGiven) sigmaAll = Math.max(residualScale(best.residuals.map((r) => r * sigmaAll), nvary), 1e-9);
+    },
   });
-  if (!nGiven) sigmaAll = Math.max(residualScale(best.residuals.map((r) => r * sigmaAll), nvary), 1e-9);
-  const pol = valuesOf(best);
-  pol.offset = offsetNearestCentre(pol.offset, pol.period, centre);
-  let fit = runFit(symmetric ? { ...pol, d: 0 } : pol, true, symmetric);
-  if (fit.residuals.length !== n) fit = best;
-  if (!symmetric && fit.params.asymmetry.value < 1e-6) {
-    const held = runFit({ ...valuesOf(fit), d: 0 }, true, true);
-    if (held.residuals.length === n && held.covariance) {
-      fit = {
-        ...held, nvarys: fit.nvarys, redchi: fit.redchi, aic: fit.aic, bic: fit.bic,
-        params: { ...held.params, asymmetry: { ...fit.params.asymmetry, value: 0, stderr: null, atBound: true } },
-      };
-      warnings.push('asymmetry fitted to 0 (its bound): consistent with a symmetric SQUID; no standard error');
-    }
-  }
+  if (!refined) return failure('every start failed to evaluate');
+  const fit = refined.fit;
 
   const v = Object.fromEntries(Object.entries(fit.params).map(([k, q]) => [k, q.value]));
   const theta0 = wrapToPi(v.theta0_rad);
@@ -321,12 +288,7 @@ export function fitPhaseVsFlux(points: readonly PhasePoint[], options: PhaseFitO
   }
   const coverage = Math.max(...phis) - Math.min(...phis);
   if (coverage < 0.5) warnings.push(`the data cover only ${coverage.toFixed(2)} Φ0: asymmetry and period are correlated`);
-  if (fit.correlation) {
-    const nm = fit.varyingNames;
-    for (let a = 0; a < nm.length; a++) for (let b = a + 1; b < nm.length; b++) {
-      if (Math.abs(fit.correlation[a][b]) > 0.95) warnings.push(`strong correlation ${nm[a]}–${nm[b]}: ${fit.correlation[a][b].toFixed(3)}`);
-    }
-  }
+  fitQualityWarnings(fit, warnings);
   if (outliers.length) warnings.push(`${outliers.length} point(s) flagged as outliers (|r| > 5 robust σ)`);
   const goodness = goodnessWarning(fit.redchi, nGiven > 0, 'sigmaRad');
   if (goodness) warnings.push(goodness);
