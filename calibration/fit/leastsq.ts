@@ -420,6 +420,12 @@ export function leastSquares(
 
   const trial = new Float64Array(k);
   const s = new Float64Array(k);
+  /** ftol (given whether the cost change is below it) and xtol tests: the message, or null. */
+  const stopTest = (costChangeSmall: boolean, norms: { step: number; point: number }): string | null => {
+    if (costChangeSmall) return `converged: relative cost reduction below ftol = ${ftol}`;
+    if (norms.step <= xtol * (norms.point + xtol)) return `converged: relative step below xtol = ${xtol}`;
+    return null;
+  };
 
   while (true) {
     if (jac === null) {
@@ -504,28 +510,20 @@ export function leastSquares(
         message = 'converged: residuals are exactly zero';
         break;
       }
-      if (actual <= ftol * oldCost && predicted <= ftol * oldCost) {
+      const stop = stopTest(actual <= ftol * oldCost && predicted <= ftol * oldCost, norms);
+      if (stop) {
         converged = true;
-        message = `converged: relative cost reduction below ftol = ${ftol}`;
-        break;
-      }
-      if (norms.step <= xtol * (norms.point + xtol)) {
-        converged = true;
-        message = `converged: relative step below xtol = ${xtol}`;
+        message = stop;
         break;
       }
     } else {
       lambda *= nu;
       nu *= 2;
       // Rounding level: neither the model nor the function can decrease the cost measurably.
-      if (predicted <= ftol * cost && Math.abs(actual) <= ftol * cost) {
+      const stop = stopTest(predicted <= ftol * cost && Math.abs(actual) <= ftol * cost, norms);
+      if (stop) {
         converged = true;
-        message = `converged: relative cost reduction below ftol = ${ftol}`;
-        break;
-      }
-      if (norms.step <= xtol * (norms.point + xtol)) {
-        converged = true;
-        message = `converged: relative step below xtol = ${xtol}`;
+        message = stop;
         break;
       }
     }

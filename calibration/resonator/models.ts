@@ -42,6 +42,15 @@ export interface ComplexTrace {
 }
 
 /** S21 = a e^{iα} e^{−2πifτ} [1 − (Q_l/|Q_c|) e^{iφ} / (1 + 2iQ_l(f/f_r − 1))]. */
+/** out[i] = a e^{iα} e^{−2πifτ} · (sr + i si): the measurement chain around the bare resonator response. */
+function withEnvironment(f: number, p: Environment, sr: number, si: number, re: Float64Array, im: Float64Array, i: number): void {
+  const ph = p.alphaRad - 2 * Math.PI * f * p.delayS;
+  const br = p.a * Math.cos(ph);
+  const bi = p.a * Math.sin(ph);
+  re[i] = br * sr - bi * si;
+  im[i] = br * si + bi * sr;
+}
+
 export function notchResponse(freqHz: ArrayLike<number>, p: NotchParams): ComplexTrace {
   const n = freqHz.length;
   const re = new Float64Array(n);
@@ -59,11 +68,7 @@ export function notchResponse(freqHz: ArrayLike<number>, p: NotchParams): Comple
     // s = 1 − k e^{iφ} L
     const sr = 1 - (kr * lr - ki * li);
     const si = -(kr * li + ki * lr);
-    const ph = p.alphaRad - 2 * Math.PI * f * p.delayS;
-    const br = p.a * Math.cos(ph);
-    const bi = p.a * Math.sin(ph);
-    re[i] = br * sr - bi * si;
-    im[i] = br * si + bi * sr;
+    withEnvironment(f, p, sr, si, re, im, i);
   }
   return { re, im };
 }
@@ -80,11 +85,7 @@ export function reflectionResponse(freqHz: ArrayLike<number>, p: ReflectionParam
     const d = 1 / (1 + u * u);
     const sr = 1 - k * d;
     const si = k * u * d;
-    const ph = p.alphaRad - 2 * Math.PI * f * p.delayS;
-    const br = p.a * Math.cos(ph);
-    const bi = p.a * Math.sin(ph);
-    re[i] = br * sr - bi * si;
-    im[i] = br * si + bi * sr;
+    withEnvironment(f, p, sr, si, re, im, i);
   }
   return { re, im };
 }

@@ -73,11 +73,54 @@ function pointsJson(
   }));
 }
 
+/** What the tuning and phase results have in common for the JSON. */
+interface FluxFitResultLike {
+  success: boolean;
+  message: string;
+  loss: CalibrationJson['loss'];
+  biasUnit: string;
+  fit: FitResult | null;
+  line: { period: number };
+  outliers: number[];
+  points: Parameters<typeof pointsJson>[0];
+  warnings: string[];
+  fixed: CalibrationJson['fixed'];
+}
+
+/** The JSON shared by both kinds of fit; model-specific fields come in `own`. */
+function fluxFitJson(
+  r: FluxFitResultLike,
+  extras: CalibrationJsonExtras,
+  own: Pick<CalibrationJson, 'kind' | 'model' | 'geometry' | 'params'> & { derived: Record<string, unknown> },
+): CalibrationJson {
+  const warnings = r.warnings.slice();
+  const { covariance, correlation } = matrices(r.fit, r.line.period < 0 ? -1 : 1);
+  return {
+    schema: CALIBRATION_SCHEMA,
+    core_version: extras.coreVersion ?? pkg.version,
+    kind: own.kind,
+    model: own.model,
+    geometry: own.geometry,
+    bias_unit: r.biasUnit,
+    bias_quantity: biasQuantity(r.biasUnit),
+    params: own.params,
+    fixed: { ...r.fixed },
+    covariance,
+    correlation,
+    ...statistics(r.fit, r.points.length, warnings),
+    success: r.success,
+    message: r.message,
+    loss: r.loss,
+    outliers: r.outliers.slice(),
+    points: pointsJson(r.points, extras.rows),
+    derived: jsonSafe(own.derived) as Record<string, unknown>,
+    warnings,
+    ...(extras.source !== undefined ? { source: extras.source } : {}),
+  };
+}
+
 /** CalibrationJson of a tuning-curve fit (model exact or approx). */
 export function tuningResultToCalibrationJson(r: TuningFitResult, extras: CalibrationJsonExtras = {}): CalibrationJson {
-  const warnings = r.warnings.slice();
-  const sign = r.line.period < 0 ? -1 : 1;
-  const { covariance, correlation } = matrices(r.fit, sign);
   const params: CalibrationJson['params'] = {
     f0_hz: vwe(r.params.f0_hz),
     gamma0: vwe(r.params.gamma0),
@@ -86,25 +129,12 @@ export function tuningResultToCalibrationJson(r: TuningFitResult, extras: Calibr
     flux_offset: vwe(r.params.flux_offset),
   };
   if (r.params.cs_over_cr.vary || r.params.cs_over_cr.value !== 0) params.cs_over_cr = vwe(r.params.cs_over_cr);
-  return {
-    schema: CALIBRATION_SCHEMA,
-    core_version: extras.coreVersion ?? pkg.version,
+  return fluxFitJson(r, extras, {
     kind: extras.kind ?? 'tuning_points',
     model: r.model,
     geometry: extras.geometry ?? null,
-    bias_unit: r.biasUnit,
-    bias_quantity: biasQuantity(r.biasUnit),
     params,
-    fixed: { ...r.fixed },
-    covariance,
-    correlation,
-    ...statistics(r.fit, r.points.length, warnings),
-    success: r.success,
-    message: r.message,
-    loss: r.loss,
-    outliers: r.outliers.slice(),
-    points: pointsJson(r.points, extras.rows),
-    derived: jsonSafe({
+    derived: {
       ...r.derived,
       symmetric_fit: r.symmetric,
       conventions: {
@@ -113,25 +143,16 @@ export function tuningResultToCalibrationJson(r: TuningFitResult, extras: Calibr
         flux_period_sign: 'not observable from a tuning curve (even in flux); sign as requested, default positive',
         outliers: '|residual/sigma| > 5 s and |residual| > 1e-8 f0; s = dof-corrected robust scale of the weighted residuals (MAD, then inlier RMS), at least 1 when sigma is given',
       },
-    }) as Record<string, unknown>,
-    warnings,
-    ...(extras.source !== undefined ? { source: extras.source } : {}),
-  };
+    },
+  });
 }
 
 /** CalibrationJson of a phase-versus-flux fit (model 'phase'). */
 export function phaseResultToCalibrationJson(r: PhaseFitResult, extras: CalibrationJsonExtras = {}): CalibrationJson {
-  const warnings = r.warnings.slice();
-  const sign = r.line.period < 0 ? -1 : 1;
-  const { covariance, correlation } = matrices(r.fit, sign);
-  return {
-    schema: CALIBRATION_SCHEMA,
-    core_version: extras.coreVersion ?? pkg.version,
+  return fluxFitJson(r, extras, {
     kind: extras.kind ?? 'phase_flux',
     model: 'phase',
     geometry: extras.geometry ?? 'reflection',
-    bias_unit: r.biasUnit,
-    bias_quantity: biasQuantity(r.biasUnit),
     params: {
       tau_eff0_s: vwe(r.params.tau_eff0_s),
       asymmetry: vwe(r.params.asymmetry),
@@ -139,24 +160,13 @@ export function phaseResultToCalibrationJson(r: PhaseFitResult, extras: Calibrat
       flux_offset: vwe(r.params.flux_offset),
       theta0_rad: vwe(r.params.theta0_rad),
     },
-    fixed: { ...r.fixed },
-    covariance,
-    correlation,
-    ...statistics(r.fit, r.points.length, warnings),
-    success: r.success,
-    message: r.message,
-    loss: r.loss,
-    outliers: r.outliers.slice(),
-    points: pointsJson(r.points, extras.rows),
-    derived: jsonSafe({
+    derived: {
       ...r.derived,
       conventions: {
         flux: 'phi0 = (bias - flux_offset) / flux_period',
         flux_offset: 'bias of the phase maximum (tau_eff minimum) nearest the sweep centre',
         phase: 'theta = theta0 - 2 omega tau_eff(phi); residuals wrapped into (-pi, pi]; theta0 wrapped into (-pi, pi]',
       },
-    }) as Record<string, unknown>,
-    warnings,
-    ...(extras.source !== undefined ? { source: extras.source } : {}),
-  };
+    },
+  });
 }

@@ -3,6 +3,7 @@
  * statistics, the dominant period of a sampled curve, phase unwrapping, offset convention.
  */
 import FFT from 'fft.js';
+import type { FittedPoint } from '../contract';
 import type { FitResult, Loss, ParameterSpec } from '../fit/types';
 import { robustCost as engineCost } from '../fit/loss';
 import { median, robustSigma, secondDifferenceSigma } from '../util/stats';
@@ -71,21 +72,14 @@ export function chooseStarts<S extends { period: number; d: number }>(ranked: re
   return chosen;
 }
 
-/** Per-point result of a flux fit (tuning curve or phase), in the caller's order. */
-export interface FittedPointOut {
-  index: number;
-  bias: number;
-  flux_phi0: number;
-  measured: number;
-  sigma: number | null;
-  /** Model value (phase fit: shifted by whole turns to the branch nearest the measured value). */
-  model: number;
-  /** measured − model (phase fit: wrapped into (−π, π]) */
-  residual: number;
-  /** residual/σ used by the fit */
+/**
+ * Per-point result of a flux fit (tuning curve or phase), in the caller's order: the contract's
+ * FittedPoint without the source row, plus the weighted residual (residual/σ used by the fit) and
+ * the robust weight. Phase fit: model on the branch nearest the measured value, residual wrapped.
+ */
+export interface FittedPointOut extends Omit<FittedPoint, 'row'> {
   weighted_residual: number;
   robust_weight: number | null;
-  outlier: boolean;
 }
 
 /**
