@@ -340,6 +340,35 @@ export function biasQuantity(unit: string | undefined | null): 'current' | 'volt
   return 'unknown';
 }
 
+/**
+ * Reads {bias, <value>, <sigma>?} points, checking every field (TuningInputError names the point
+ * and field). `positive`: the value must be > 0 (a frequency). σ must be > 0 when present.
+ */
+export function readFluxPoints<V extends string, S extends string>(
+  points: unknown, valueKey: V, sigmaKey: S, positive: boolean,
+): { bias: number[]; value: number[]; sigma: (number | null)[] } {
+  if (!Array.isArray(points)) throw new TuningInputError(`points must be an array of {bias, ${valueKey}}`);
+  const bias: number[] = [];
+  const value: number[] = [];
+  const sigma: (number | null)[] = [];
+  for (let i = 0; i < points.length; i++) {
+    const pt = points[i] as Record<string, unknown> | null;
+    if (pt === null || typeof pt !== 'object') throw new TuningInputError(`point ${i}: not an object`, i);
+    bias.push(requireFinite(pt.bias, i, 'bias'));
+    const v = requireFinite(pt[valueKey], i, valueKey);
+    if (positive && !(v > 0)) throw new TuningInputError(`point ${i}: ${valueKey} must be positive (got ${v})`, i, valueKey);
+    value.push(v);
+    const s = pt[sigmaKey];
+    if (s === undefined || s === null) sigma.push(null);
+    else {
+      const sv = requireFinite(s, i, sigmaKey);
+      if (!(sv > 0)) throw new TuningInputError(`point ${i}: ${sigmaKey} must be positive (got ${sv})`, i, sigmaKey);
+      sigma.push(sv);
+    }
+  }
+  return { bias, value, sigma };
+}
+
 /** Check a numeric field of a point; throws TuningInputError naming the point and field. */
 export function requireFinite(value: unknown, index: number, field: string): number {
   if (typeof value !== 'number' || !Number.isFinite(value)) {

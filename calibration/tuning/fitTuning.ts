@@ -29,7 +29,7 @@ import {
 } from '../squid/model';
 import {
   asymmetryOf, asymmetrySpec, biasQuantity, chooseStarts, dominantPeriod, fitQualityWarnings, type FittedPointOut,
-  goodnessWarning, median, noiseFromSecondDifferences, orderByBias, outlierScale, refineStarts, requireFinite,
+  goodnessWarning, median, noiseFromSecondDifferences, orderByBias, outlierScale, readFluxPoints, refineStarts,
   residualScale, robustSigma, runningMedian, TuningInputError, weightedLine,
 } from './common';
 
@@ -372,26 +372,8 @@ export function fitTuningCurve(points: readonly TuningPoint[], options: TuningFi
   const z0 = options.z0Ohm ?? null;
   const loopL = options.loopInductanceH ?? null;
   const warnings: string[] = [];
-  if (!Array.isArray(points)) throw new TuningInputError('points must be an array of {bias, frHz}');
-  const n = points.length;
-  const bias: number[] = [];
-  const fr: number[] = [];
-  const sigmaGiven: (number | null)[] = [];
-  for (let i = 0; i < n; i++) {
-    const pt = points[i];
-    if (pt === null || typeof pt !== 'object') throw new TuningInputError(`point ${i}: not an object`, i);
-    bias.push(requireFinite(pt.bias, i, 'bias'));
-    const f = requireFinite(pt.frHz, i, 'frHz');
-    if (!(f > 0)) throw new TuningInputError(`point ${i}: frHz must be positive (got ${f})`, i, 'frHz');
-    fr.push(f);
-    const s = pt.sigmaHz;
-    if (s === undefined || s === null) sigmaGiven.push(null);
-    else {
-      requireFinite(s, i, 'sigmaHz');
-      if (!(s > 0)) throw new TuningInputError(`point ${i}: sigmaHz must be positive (got ${s})`, i, 'sigmaHz');
-      sigmaGiven.push(s);
-    }
-  }
+  const { bias, value: fr, sigma: sigmaGiven } = readFluxPoints(points, 'frHz', 'sigmaHz', true);
+  const n = bias.length;
   if (z0 !== null && !(z0 > 0 && Number.isFinite(z0))) throw new TuningInputError(`z0Ohm must be a positive number (got ${z0})`);
   if (loopL !== null && !(loopL >= 0 && Number.isFinite(loopL))) {
     throw new TuningInputError(`loopInductanceH must be a non-negative number (got ${loopL})`);

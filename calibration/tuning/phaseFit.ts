@@ -20,7 +20,7 @@ import { effectiveDelayDerivatives, fluxFromBias, HYSTERESIS_BETA_L, screeningPa
 import { FLUX_QUANTUM } from '../constants';
 import {
   asymmetryOf, asymmetrySpec, chooseStarts, dominantPeriod, fitQualityWarnings, type FittedPointOut, goodnessWarning,
-  median, noiseFromSecondDifferences, orderByBias, outlierScale, refineStarts, requireFinite, residualScale, robustSigma,
+  median, noiseFromSecondDifferences, orderByBias, outlierScale, readFluxPoints, refineStarts, residualScale, robustSigma,
   runningMedian, TuningInputError, unwrapPhase, weightedLine, wrapToPi,
 } from './common';
 import type { TuningParamValue } from './fitTuning';
@@ -131,24 +131,8 @@ export function fitPhaseVsFlux(points: readonly PhasePoint[], options: PhaseFitO
   const vph = options.phaseVelocityMps ?? null;
   const loopL = options.loopInductanceH ?? null;
   const warnings: string[] = [];
-  if (!Array.isArray(points)) throw new TuningInputError('points must be an array of {bias, phaseRad}');
-  const n = points.length;
-  const bias: number[] = [];
-  const ph: number[] = [];
-  const sg: (number | null)[] = [];
-  for (let i = 0; i < n; i++) {
-    const pt = points[i];
-    if (pt === null || typeof pt !== 'object') throw new TuningInputError(`point ${i}: not an object`, i);
-    bias.push(requireFinite(pt.bias, i, 'bias'));
-    ph.push(requireFinite(pt.phaseRad, i, 'phaseRad'));
-    const s = pt.sigmaRad;
-    if (s === undefined || s === null) sg.push(null);
-    else {
-      requireFinite(s, i, 'sigmaRad');
-      if (!(s > 0)) throw new TuningInputError(`point ${i}: sigmaRad must be positive (got ${s})`, i, 'sigmaRad');
-      sg.push(s);
-    }
-  }
+  const { bias, value: ph, sigma: sg } = readFluxPoints(points, 'phaseRad', 'sigmaRad', false);
+  const n = bias.length;
   const nGiven = sg.filter((s) => s !== null).length;
   const medGiven = nGiven ? median(sg.filter((s): s is number => s !== null)) : 1;
   const order = orderByBias(bias);
