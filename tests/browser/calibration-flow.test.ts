@@ -11,7 +11,9 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import type { Browser, Page } from 'playwright-core';
 import { rawComplexCsv, tuningPointsCsv, type SyntheticDevice } from '@/calibration/synth';
+import request from 'supertest';
 import { startTestServer, type TestServer } from '@/tests/support/testServer';
+import { bearer, signInAs } from '@/tests/support/api';
 import { countColour, countInk, decodePng } from './calibration-pixels';
 import { DEMO, horizontalOverflow, launchChromium, openPage, PHONE, requireExport, sessionToken, shot, signInThroughUi, WIDE } from './support';
 
@@ -53,6 +55,17 @@ beforeAll(async () => {
   const staticDir = requireExport();
   dir = mkdtempSync(path.join(tmpdir(), 'fw-cal-'));
   server = await startTestServer({ seedDemo: true, staticDir });
+  // The demo devices already carry calibrations; the flow starts from devices that have none.
+  const token = await signInAs(server.app, 'device_engineer');
+  const batches = await request(server.app).get('/api/batches').set(bearer(token));
+  const batchId = batches.body.batches[0].id as number;
+  for (const name of ['BT-PHONE', 'BT-WIDE']) {
+    const res = await request(server.app)
+      .post('/api/devices')
+      .set(bearer(token))
+      .send({ name, batchId, chipPosition: 'Z9', geometry: 'quarter_wave', designZ0Ohm: 50, designFrequencyHz: 6.1e9 });
+    expect(res.status).toBe(201);
+  }
   browser = await launchChromium();
 });
 
@@ -154,8 +167,8 @@ async function acceptWithComment(page: Page, comment: string): Promise<void> {
 }
 
 describe.each([
-  ['phone', PHONE, false, 'Q4-R2'],
-  ['wide', WIDE, true, 'Q4-R3'],
+  ['phone', PHONE, false, 'BT-PHONE'],
+  ['wide', WIDE, true, 'BT-WIDE'],
 ] as const)('%s: device engineer calibrates a device', (label, viewport, wide, deviceName) => {
   test('upload, follow the job, read the fit, accept it, then replace it by a newer one', async () => {
     const { page, context, errors } = await openPage(browser, viewport);
