@@ -255,15 +255,31 @@ export function leastSquares(
   /** Plain Jacobian at x, column-major (column j = ∂r/∂x_j, length n); a string says why it failed. */
   const computeJacobian = (xv: Float64Array, r: Float64Array, stepFactor = 1, numericOnly = false): Float64Array | string => {
     njev++;
-    const jac = new Float64Array(n * k);
     if (jacobian && !numericOnly) {
-      let rows: number[][];
+      let rows: number[][] | Float64Array;
       try {
         rows = jacobian(record(xv), varyingNames);
       } catch (e) {
         return `the Jacobian function threw: ${errorText(e)}`;
       }
+      if (rows instanceof Float64Array) {
+        // column-major, entry (i, j) at j·n + i
+        if (rows.length !== n * k) return `the Jacobian function returned ${rows.length} values instead of ${n} × ${k} = ${n * k}`;
+        // one multiply-add per entry: v·0 is NaN exactly when v is not finite
+        let probe = 0;
+        for (let q = 0; q < rows.length; q++) probe += rows[q] * 0;
+        if (probe !== 0) {
+          for (let q = 0; q < rows.length; q++) {
+            if (!Number.isFinite(rows[q])) {
+              const j = Math.floor(q / n);
+              return `Jacobian entry [${q - j * n}][${j}] (${varyingNames[j]}) is ${rows[q]}`;
+            }
+          }
+        }
+        return rows; // the engine keeps this array (see JacobianFunction)
+      }
       if (!Array.isArray(rows) || rows.length !== n) return `the Jacobian function returned ${Array.isArray(rows) ? rows.length : 'no'} rows instead of ${n}`;
+      const jac = new Float64Array(n * k);
       for (let i = 0; i < n; i++) {
         const row = rows[i];
         if (!row || row.length !== k) return `Jacobian row ${i} has ${row ? row.length : 0} entries instead of ${k}`;
@@ -275,6 +291,7 @@ export function leastSquares(
       }
       return jac;
     }
+    const jac = new Float64Array(n * k);
     const xp = Float64Array.from(xv);
     for (let j = 0; j < k; j++) {
       const xj = xv[j];
@@ -317,6 +334,7 @@ export function leastSquares(
   let stopFailure = '';
 
   let weightedJac = new Float64Array(0);
+  let plainGramOf: Float64Array | null = null;
   const weightedRes = new Float64Array(n);
   /** A = J̃ᵀJ̃, g = J̃ᵀr̃ with rows scaled by √ρ′ (plain J and r for the linear loss). */
   const buildNormalEquations = (jc: Float64Array) => {
@@ -340,15 +358,11 @@ export function leastSquares(
       let ga = 0;
       for (let i = 0; i < n; i++) ga += jw[oa + i] * rw[i];
       g[a] = ga;
-      for (let b = 0; b <= a; b++) {
-        const ob = b * n;
-        let sum = 0;
-        for (let i = 0; i < n; i++) sum += jw[oa + i] * jw[ob + i];
-        A[a * k + b] = sum;
-        A[b * k + a] = sum;
-      }
-      if (A[a * k + a] > dmax[a]) dmax[a] = A[a * k + a];
     }
+    gramInto(jw, n, k, A);
+    for (let a = 0; a < k; a++) if (A[a * k + a] > dmax[a]) dmax[a] = A[a * k + a];
+    // with the linear loss A is the plain JᵀJ of `jc`: finish() reuses it when jc is the final Jacobian
+    plainGramOf = loss === 'linear' ? jc : null;
   };
 
   const markActive = () => {
@@ -594,16 +608,9 @@ export function leastSquares(
       if (typeof jc === 'string') {
         note = `covariance not estimated: ${jc}`;
       } else {
-        const nn = nd;
         const jtj = new Float64Array(k * k);
-        for (let a = 0; a < k; a++) {
-          for (let b = 0; b <= a; b++) {
-            let sum = 0;
-            for (let i = 0; i < nn; i++) sum += jc[a * nn + i] * jc[b * nn + i];
-            jtj[a * k + b] = sum;
-            jtj[b * k + a] = sum;
-          }
-        }
+        if (jc === plainGramOf) jtj.set(A.subarray(0, k * k));
+        else gramInto(jc, nd, k, jtj);
         const inv = invertSymmetricPositiveDefinite(jtj, k, COVARIANCE_PIVOT_TOL);
         if (inv === null) {
           const flat = [];
@@ -679,6 +686,40 @@ export function leastSquares(
 
   function computeJacobianSafe(xv: Float64Array, res: Float64Array): Float64Array | string {
     return computeJacobian(xv, res);
+  }
+}
+
+/**
+ * out = JᵀJ (k×k, row-major, symmetric) of a column-major n×k matrix J. Two columns share each
+ * pass over the rows (half the loads of column a); every entry is still summed in row order, so
+ * the result is the same to the bit as one dot product per entry.
+ */
+function gramInto(jc: Float64Array, n: number, k: number, out: Float64Array): void {
+  for (let a = 0; a < k; a++) {
+    const oa = a * n;
+    let b = 0;
+    for (; b + 1 <= a; b += 2) {
+      const ob = b * n;
+      const oc = ob + n;
+      let s0 = 0;
+      let s1 = 0;
+      for (let i = 0; i < n; i++) {
+        const v = jc[oa + i];
+        s0 += v * jc[ob + i];
+        s1 += v * jc[oc + i];
+      }
+      out[a * k + b] = s0;
+      out[b * k + a] = s0;
+      out[a * k + b + 1] = s1;
+      out[(b + 1) * k + a] = s1;
+    }
+    for (; b <= a; b++) {
+      const ob = b * n;
+      let sum = 0;
+      for (let i = 0; i < n; i++) sum += jc[oa + i] * jc[ob + i];
+      out[a * k + b] = sum;
+      out[b * k + a] = sum;
+    }
   }
 }
 

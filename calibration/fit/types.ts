@@ -62,8 +62,13 @@ export interface LeastSquaresOptions {
  */
 export type ResidualFunction = (p: Readonly<Record<string, number>>) => ArrayLike<number>;
 
-/** Optional analytic Jacobian: d residual_i / d p_j for the varying parameters, rows = residuals. */
-export type JacobianFunction = (p: Readonly<Record<string, number>>, varyingNames: readonly string[]) => number[][];
+/**
+ * Optional analytic Jacobian: d residual_i / d p_j for the varying parameters (columns in
+ * `varyingNames` order). Either rows (number[][], one row per residual) or, cheaper for long
+ * residual vectors, one column-major Float64Array of length ndata·nvarys with entry (i, j) at
+ * j·ndata + i. The engine keeps that array (no copy): return a new one on every call.
+ */
+export type JacobianFunction = (p: Readonly<Record<string, number>>, varyingNames: readonly string[]) => number[][] | Float64Array;
 
 export interface FittedParameter {
   name: string;

@@ -318,10 +318,11 @@ function extractCore(
     ],
     { maxIterations: 20, computeCovariance: false },
     (p, names) => {
-      const rows: number[][] = new Array(m);
+      // column-major (see fit/types.ts JacobianFunction): column j = ∂r/∂names[j]
+      const k = names.length;
+      const cols = new Float64Array(m * k);
       const fr = p.fr;
       const ql = p.ql;
-      const full = names.length === 3 && names[0] === 'theta0' && names[1] === 'fr' && names[2] === 'ql';
       const idx = names.map((nm) => ['theta0', 'fr', 'ql'].indexOf(nm));
       for (let i = 0; i < m; i++) {
         const x = 1 - fa[i] / fr;
@@ -330,13 +331,9 @@ function extractCore(
         // residual = θ_i − model; d model/dθ0 = 1, d/dfr = w·2Q f/fr², d/dQ = w·2x.
         const dF = (-w * 2 * ql * fa[i]) / (fr * fr);
         const dQ = -w * 2 * x;
-        if (full) rows[i] = [-1, dF, dQ];
-        else {
-          const all = [-1, dF, dQ];
-          rows[i] = idx.map((j) => all[j]);
-        }
+        for (let j = 0; j < k; j++) cols[j * m + i] = idx[j] === 0 ? -1 : idx[j] === 1 ? dF : dQ;
       }
-      return rows;
+      return cols;
     },
   );
   let theta0 = guess.theta0;
@@ -391,14 +388,16 @@ function extractCore(
     }
     return out;
   };
-  const jacobian = (p: Readonly<Record<string, number>>, varying: readonly string[]): number[][] => {
+  // column-major (see fit/types.ts JacobianFunction): rows 0…n−1 are Re, n…2n−1 are Im
+  const jacobian = (p: Readonly<Record<string, number>>, varying: readonly string[]): Float64Array => {
     const q = point(p);
     const col = varying.map((nm) => names.indexOf(nm));
-    const identity = col.every((c, j) => c === j);
     const kAbs = notch ? q.ql / q.qc : (2 * q.ql) / q.qc;
     const kr = notch ? kAbs * Math.cos(q.phi) : kAbs;
     const ki = notch ? kAbs * Math.sin(q.phi) : 0;
-    const rows: number[][] = new Array(2 * n);
+    const nr = 2 * n;
+    const k = col.length;
+    const cols = new Float64Array(nr * k);
     const dRe = new Float64Array(7);
     const dIm = new Float64Array(7);
     environmentPhasor(freqHz, fRef, q.alphaRef, q.tau, step, pc, ps);
@@ -443,26 +442,14 @@ function extractCore(
       dRe[4] = br * dsQr - bi * dsQi; dIm[4] = br * dsQi + bi * dsQr;
       dRe[5] = br * dsCr - bi * dsCi; dIm[5] = br * dsCi + bi * dsCr;
       dRe[6] = br * dsPr - bi * dsPi; dIm[6] = br * dsPi + bi * dsPr;
-      // Literal rows on the common paths (all parameters varying): far less allocation work.
-      if (identity && col.length === 7) {
-        rows[i] = [-dRe[0] * inv, -dRe[1] * inv, -dRe[2] * inv, -dRe[3] * inv, -dRe[4] * inv, -dRe[5] * inv, -dRe[6] * inv];
-        rows[n + i] = [-dIm[0] * inv, -dIm[1] * inv, -dIm[2] * inv, -dIm[3] * inv, -dIm[4] * inv, -dIm[5] * inv, -dIm[6] * inv];
-      } else if (identity && col.length === 6) {
-        rows[i] = [-dRe[0] * inv, -dRe[1] * inv, -dRe[2] * inv, -dRe[3] * inv, -dRe[4] * inv, -dRe[5] * inv];
-        rows[n + i] = [-dIm[0] * inv, -dIm[1] * inv, -dIm[2] * inv, -dIm[3] * inv, -dIm[4] * inv, -dIm[5] * inv];
-      } else {
-        const rowR = new Array<number>(col.length);
-        const rowI = new Array<number>(col.length);
-        for (let j = 0; j < col.length; j++) {
-          rowR[j] = -dRe[col[j]] * inv;
-          rowI[j] = -dIm[col[j]] * inv;
-        }
-        rows[i] = rowR;
-        rows[n + i] = rowI;
+      for (let j = 0; j < k; j++) {
+        cols[j * nr + i] = -dRe[col[j]] * inv;
+        cols[j * nr + n + i] = -dIm[col[j]] * inv;
       }
     }
-    return rows;
+    return cols;
   };
+
   const specs: ParameterSpec[] = [
     { name: 'a', value: aInit, min: 0 },
     { name: 'alpha_ref', value: alphaRefInit },

@@ -166,6 +166,21 @@ export function refineStarts<S extends FluxStart>(o: MultiStartFit<S>): { fit: F
   return { fit, best };
 }
 
+/**
+ * Column-major Jacobian (fit/types.ts JacobianFunction) of residuals r_i = (data_i − model_i)·w_i
+ * from the model gradient: column j = −w·∂model/∂names[j].
+ */
+export function residualJacobian(grad: Record<string, Float64Array>, names: readonly string[], w: ArrayLike<number>): Float64Array {
+  const n = w.length;
+  const out = new Float64Array(n * names.length);
+  for (let j = 0; j < names.length; j++) {
+    const g = grad[names[j]];
+    const o = j * n;
+    for (let i = 0; i < n; i++) out[o + i] = -g[i] * w[i];
+  }
+  return out;
+}
+
 /** Warnings every flux fit gives about its result: strong correlations, parameters on bounds. */
 export function fitQualityWarnings(fit: FitResult, warnings: string[]): void {
   const names = fit.varyingNames;

@@ -29,7 +29,7 @@ import {
 } from '../squid/model';
 import {
   asymmetryOf, asymmetrySpec, biasQuantity, chooseStarts, dominantPeriod, fitQualityWarnings, type FittedPointOut,
-  goodnessWarning, median, noiseFromSecondDifferences, orderByBias, outlierScale, readFluxPoints, refineStarts,
+  goodnessWarning, median, noiseFromSecondDifferences, orderByBias, outlierScale, readFluxPoints, refineStarts, residualJacobian,
   residualScale, robustSigma, runningMedian, TuningInputError, weightedLine,
 } from './common';
 
@@ -453,13 +453,8 @@ export function fitTuningCurve(points: readonly TuningPoint[], options: TuningFi
       for (let i = 0; i < n; i++) r[i] = (fr[i] - f[i]) * w[i];
       return r;
     };
-    const jacobian: JacobianFunction = (p, names) => {
-      const { grad } = tuningModelWithGradient(bias, p, model, true);
-      const g = grad as Record<string, Float64Array>;
-      const rows: number[][] = [];
-      for (let i = 0; i < n; i++) rows.push(names.map((nm) => -g[nm][i] * w[i]));
-      return rows;
-    };
+    const jacobian: JacobianFunction = (p, names) =>
+      residualJacobian(tuningModelWithGradient(bias, p, model, true).grad as Record<string, Float64Array>, names, w);
     return leastSquares(residual, spec, { loss, fScale, computeCovariance: covariance }, jacobian);
   };
 

@@ -20,7 +20,7 @@ import { effectiveDelayDerivatives, fluxFromBias, HYSTERESIS_BETA_L, screeningPa
 import { FLUX_QUANTUM } from '../constants';
 import {
   asymmetryOf, asymmetrySpec, chooseStarts, dominantPeriod, fitQualityWarnings, type FittedPointOut, goodnessWarning,
-  median, noiseFromSecondDifferences, orderByBias, outlierScale, readFluxPoints, refineStarts, residualScale, robustSigma,
+  median, noiseFromSecondDifferences, orderByBias, outlierScale, readFluxPoints, refineStarts, residualJacobian, residualScale, robustSigma,
   runningMedian, TuningInputError, unwrapPhase, weightedLine, wrapToPi,
 } from './common';
 import type { TuningParamValue } from './fitTuning';
@@ -205,12 +205,8 @@ export function fitPhaseVsFlux(points: readonly PhasePoint[], options: PhaseFitO
       for (let i = 0; i < n; i++) r[i] = wrapToPi(ph[i] - th[i]) * w[i];
       return r;
     };
-    const jacobian: JacobianFunction = (p, names) => {
-      const g = phaseModelWithGradient(bias, p, omega, true).grad as Record<string, Float64Array>;
-      const rows: number[][] = [];
-      for (let i = 0; i < n; i++) rows.push(names.map((nm) => -g[nm][i] * w[i]));
-      return rows;
-    };
+    const jacobian: JacobianFunction = (p, names) =>
+      residualJacobian(phaseModelWithGradient(bias, p, omega, true).grad as Record<string, Float64Array>, names, w);
     return leastSquares(residual, spec, { loss, fScale, computeCovariance: covariance }, jacobian);
   };
   const chosen = chooseStarts(starts, Math.max(1, Math.floor(options.starts ?? 5)));

@@ -9,6 +9,8 @@ import { join } from 'path';
 import { leastSquares } from '@/calibration/fit';
 import type { FitResult, JacobianFunction, Loss, ParameterSpec, ResidualFunction } from '@/calibration/fit';
 import { choleskyDecompose, choleskySolve, invertSymmetricPositiveDefinite } from '@/calibration/fit/linalg';
+import { tuningModelWithGradient } from '@/calibration/tuning/fitTuning';
+import { resonanceFrequency } from '@/calibration/squid/model';
 
 interface Reference {
   values: Record<string, number>;
@@ -243,6 +245,44 @@ describe('leastSquares vs scipy (reference: scipy.optimize.least_squares / curve
   });
 });
 
+describe('column-major Float64Array Jacobian (the cheap form for long residual vectors)', () => {
+  /** The rows form of residualsOf, repacked column-major: entry (i, j) at j·n + i. */
+  const columnMajor = (pr: Problem): JacobianFunction => {
+    const { jacobian } = residualsOf(pr);
+    return (p, names) => {
+      const rows = jacobian!(p, names) as number[][];
+      const n = rows.length;
+      const out = new Float64Array(n * names.length);
+      rows.forEach((row, i) => row.forEach((v, j) => (out[j * n + i] = v)));
+      return out;
+    };
+  };
+  it.each(fixture.problems.map((p) => [p.name] as const))('%s: matches scipy and the rows form exactly', (name) => {
+    const pr = problem(name);
+    const { residual } = residualsOf(pr);
+    const res = leastSquares(residual, pr.params, { loss: pr.loss, fScale: pr.fScale }, columnMajor(pr));
+    compareWithScipy(pr, res);
+    const rows = fit(pr, true);
+    for (const n of Object.keys(pr.reference.values)) expect(res.params[n].value).toBe(rows.params[n].value);
+    expect(res.chisqr).toBe(rows.chisqr);
+    expect(res.covariance).toEqual(rows.covariance);
+  });
+  it('a wrong length or a non-finite entry stops the fit with a message naming it', () => {
+    const pr = problem('exp_decay_fixed_offset');
+    const { residual } = residualsOf(pr);
+    const short = leastSquares(residual, pr.params, {}, () => new Float64Array(3));
+    expect(short.success).toBe(false);
+    expect(short.message).toMatch(/returned 3 values instead of \d+ × 2 = \d+/);
+    const bad = leastSquares(residual, pr.params, {}, (p, names) => {
+      const out = columnMajor(pr)(p, names) as Float64Array;
+      out[out.length / 2 + 4] = NaN; // row 4 of the second column
+      return out;
+    });
+    expect(bad.success).toBe(false);
+    expect(bad.message).toMatch(/Jacobian entry \[4\]\[1\] \(tau\) is NaN/);
+  });
+});
+
 describe('NIST StRD Misra1a certified values (NIST Statistical Reference Datasets, nonlinear regression)', () => {
   // Data and certified values transcribed in make_reference.py; the script asserts scipy reproduces
   // them to 1e-9, which rules out a transcription error.
@@ -417,6 +457,37 @@ describe('failure cases return success=false with a message, never throw, never 
     expect(right.chisqr).toBeLessThanOrEqual(pr.reference.chisqr * (1 + 1e-9));
     expect(right.chisqr).toBeGreaterThan(pr.reference.chisqr * 0.99);
     expectRel(right.params.fr.value, pr.reference.values.fr * 1e9, 1e-8, 0, 'fr in Hz');
+  });
+
+  it('a long crawl with a flat direction terminates (damping floor: λ once underflowed to 0 and the loop spun)', () => {
+    // Tuning curve (exact model, calibration/tuning) started with d = 0, where f depends on d² and
+    // the d column of J is exactly zero, soft_l1 far from the optimum: hundreds of accepted steps
+    // shrink λ by 3 each. Before the floor, λ reached 0, JᵀJ + 0·D was singular forever and the
+    // call never returned; now it ends with a message (the bound on d is the tuning fit's problem).
+    const n = 15;
+    const bias = Array.from({ length: n }, (_, i) => -0.5 + i / (n - 1));
+    const dev = { f0Hz: 6.1e9, gamma0: 0.02, asymmetry: 0.15 };
+    const y = bias.map((b, i) => resonanceFrequency((b - 0.01) / 1.2, dev, 'exact') + 300 * Math.sin(i * 7.3));
+    const residual: ResidualFunction = (p) => {
+      const { f } = tuningModelWithGradient(bias, p, 'exact', false);
+      return y.map((v, i) => (v - f[i]) / 1000);
+    };
+    const jacobian: JacobianFunction = (p, names) => {
+      const g = tuningModelWithGradient(bias, p, 'exact', true).grad as Record<string, Float64Array>;
+      return bias.map((_, i) => names.map((nm) => -g[nm][i] / 1000));
+    };
+    const spec: ParameterSpec[] = [
+      { name: 'f0_hz', value: 6.155e9, min: 3e9, max: 1.2e11, diffScale: 6e6 },
+      { name: 'gamma0', value: 0.0286, min: 1e-9, max: 10, diffScale: 1e-3 },
+      { name: 'asymmetry', value: 0, min: 0, max: 1, diffScale: 1e-3 },
+      { name: 'flux_period', value: 1.326, min: 0.14, max: 100, diffScale: 1e-3 },
+      { name: 'flux_offset', value: 0.01127, min: -50, max: 50, diffScale: 1e-3 },
+    ];
+    const res = leastSquares(residual, spec, { loss: 'soft_l1', fScale: 2 }, jacobian);
+    expect(res.iterations).toBeGreaterThan(300); // the crawl that used to underflow λ
+    expect(res.iterations).toBeLessThanOrEqual(200 * 6);
+    expect(res.message).toMatch(/asymmetry/); // covariance note: the residuals do not depend on it at d = 0
+    noNaN(res);
   });
 
   it('a start outside the bounds is moved onto the bound', () => {
