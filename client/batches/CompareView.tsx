@@ -238,12 +238,14 @@ function ParamChart({ batches, param, d, spec, wide }: { batches: CompareBatch[]
 
 function ParamSection({ data, param, wide, lead }: { data: BatchComparison; param: string; wide: boolean; lead: boolean }) {
   const d = display(param, data.units[param]);
-  const spec = data.specWindows[param];
+  // The server lists every parameter; both bounds null means no window.
+  const w = data.specWindows[param];
+  const spec = w && (w.min !== null || w.max !== null) ? w : undefined;
   const [editing, setEditing] = useState(false);
   return (
     <Card
       title={`${d.label}${d.unit ? ` [${d.unit}]` : ''}`}
-      testID={`compare-param-${param}`}
+      testID={`compare-section-${param}`}
       aside={lead && !editing ? <Button small kind="ghost" label={spec ? 'Edit spec' : 'Set spec window'} testID={`spec-edit-${param}`} onPress={() => setEditing(true)} /> : null}
     >
       <Text variant="small" testID={`spec-shown-${param}`}>

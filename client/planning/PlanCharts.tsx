@@ -36,7 +36,7 @@ function modelAt(cal: CalibrationJson, bias: number): number | null {
   return null;
 }
 
-export function OperatingPointChart({ cal, bias, amplitudePhi0, wide }: { cal: CalibrationJson; bias: number; amplitudePhi0: number | null; wide: boolean }) {
+export const OperatingPointChart = React.memo(function OperatingPointChart({ cal, bias, amplitudePhi0, wide }: { cal: CalibrationJson; bias: number; amplitudePhi0: number | null; wide: boolean }) {
   const phase = cal.model === 'phase';
   const ax = useMemo(() => (phase ? { scale: 1, unit: 'rad' } : frequencyAxis(cal.points.map((q) => q.measured))), [cal, phase]);
   const base = useMemo<Series[]>(() => {
@@ -80,9 +80,9 @@ export function OperatingPointChart({ cal, bias, amplitudePhi0, wide }: { cal: C
       <XYChartLazy series={series} height={wide ? 240 : 190} testID="plan-tuning-plot" />
     </ChartCard>
   );
-}
+});
 
-export function SpectrumChart({ result, wide }: { result: PlanResult | null; wide: boolean }) {
+export const SpectrumChart = React.memo(function SpectrumChart({ result, wide }: { result: PlanResult | null; wide: boolean }) {
   const data = useMemo(() => (result ? spectrumOf(result) : null), [result]);
   const series = useMemo<Series[]>(() => {
     if (!data) return [];
@@ -105,4 +105,4 @@ export function SpectrumChart({ result, wide }: { result: PlanResult | null; wid
       {data ? <XYChartLazy series={series} height={wide ? 200 : 170} testID="plan-spectrum-plot" /> : <Text variant="small">No spectrum for this plan.</Text>}
     </ChartCard>
   );
-}
+});

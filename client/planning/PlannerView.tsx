@@ -1,9 +1,8 @@
 // The plan screen: target, bias slider over the calibrated range and conditions on one side, the
 // live plan (computed in the client with the shared core) on the other; save posts the request and
 // shows what the server stored.
-import React, { useCallback, useDeferredValue, useEffect, useMemo, useRef, useState } from 'react';
+import React, { useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import { Platform, ScrollView, StyleSheet, View } from 'react-native';
-import Slider from '@react-native-community/slider';
 import { useRouter } from 'expo-router';
 import { DEFAULT_DRAWS } from '@/calibration/planner';
 import { fluxFromBias } from '@/calibration/squid/model';
@@ -23,7 +22,8 @@ import { EmptyState, ErrorState, LoadingState, Notice } from '../ui/States';
 import { Text } from '../ui/Text';
 import { TextField } from '../ui/TextField';
 import { useIsWide } from '../ui/useLayout';
-import { dbm, fixed, hz, rate, sci } from './format';
+import { bandText, dbm, fixed, hz, rate, sci } from './format';
+import { BiasSlider } from './BiasSlider';
 import { OperatingPointChart, SpectrumChart } from './PlanCharts';
 import { PumpLineCard } from './PumpLineCard';
 import { RankedPoints } from './RankedPoints';
@@ -45,6 +45,28 @@ function useDebounced<T>(value: T, ms: number): T {
     const t = setTimeout(() => setV(value), ms);
     return () => clearTimeout(t);
   }, [value, ms]);
+  return v;
+}
+
+const CHART_MS = 120;
+
+/** The value, but while `active` at most one change per `ms` (the latest wins); immediate otherwise. */
+function useThrottled<T>(value: T, ms: number, active: boolean): T {
+  const [v, setV] = useState(value);
+  const last = useRef(0);
+  useEffect(() => {
+    if (!active) {
+      last.current = Date.now();
+      setV(value);
+      return;
+    }
+    const wait = Math.max(0, last.current + ms - Date.now());
+    const t = setTimeout(() => {
+      last.current = Date.now();
+      setV(value);
+    }, wait);
+    return () => clearTimeout(t);
+  }, [value, ms, active]);
   return v;
 }
 
@@ -139,9 +161,12 @@ function Planner({ deviceId, deviceName, cal, fitVersion }: { deviceId: number; 
   const filled = useMemo(() => (request ? fillFromPumpLine(cal, request, pumpLine.data) : null), [cal, request, pumpLine.data]);
   const live = useLivePlan(cal, filled?.request ?? null, dragging);
   const result = live.result;
-  const chartBias = useDeferredValue(inputs.bias);
-  const chartAmp = useDeferredValue(result?.pump_amplitude_phi0 ?? null);
-  const chartResult = useDeferredValue(result);
+  // Charts redraw at most every CHART_MS while dragging (the numbers above them every move), and at
+  // once when the slider settles: a chart render costs more than a frame on a phone.
+  const chart = useThrottled(useMemo(() => ({ bias: inputs.bias, amp: result?.pump_amplitude_phi0 ?? null, result }), [inputs.bias, result]), CHART_MS, dragging);
+  const chartBias = chart.bias;
+  const chartAmp = chart.amp;
+  const chartResult = chart.result;
   const qCal = useMemo(() => calibrationQ(cal, inputs.bias), [cal, inputs.bias]);
   const phi = fluxFromBias(inputs.bias, cal.params.flux_period?.value ?? 1, cal.params.flux_offset?.value ?? 0);
 
@@ -239,7 +264,11 @@ function Planner({ deviceId, deviceName, cal, fitVersion }: { deviceId: number; 
         <Text style={styles.stripValue} testID="live-rate">
           {result ? sci(result.predicted_pair_rate) : live.refusal ? 'refused' : '—'}
         </Text>
-        {result?.uncertainty ? <Text variant="monoSmall">{`${sci(result.uncertainty.pair_rate_p16, 2)} – ${sci(result.uncertainty.pair_rate_p84, 2)}`}</Text> : null}
+        {result?.uncertainty ? (
+          <Text variant="monoSmall" testID="live-rate-band">
+            {bandText(result.uncertainty.pair_rate_p16, result.uncertainty.pair_rate_p50, result.uncertainty.pair_rate_p84).replace(/^.*\(/, '(')}
+          </Text>
+        ) : null}
       </View>
       {inputs.mode === 'cavity' ? (
         <View style={{ flexBasis: '100%', gap: 2 }}>
@@ -259,24 +288,7 @@ function Planner({ deviceId, deviceName, cal, fitVersion }: { deviceId: number; 
       <View style={{ flexDirection: 'row', alignItems: 'center', gap: space.sm }}>
         <Button small kind="secondary" label="‹" accessibilityLabel="Lower bias" testID="plan-bias-down" onPress={() => setBias(inputs.bias - 5 * step)} />
         <View style={{ flex: 1, minWidth: 0 }} testID="plan-bias-slider-wrap">
-          <Slider
-            testID="plan-bias-slider"
-            style={{ height: 40 }}
-            minimumValue={lo}
-            maximumValue={hi}
-            step={step}
-            value={inputs.bias}
-            minimumTrackTintColor={colors.accent}
-            maximumTrackTintColor={colors.ruleStrong}
-            thumbTintColor={colors.accent}
-            onSlidingStart={() => setDragging(true)}
-            onValueChange={(v: number) => setBias(v)}
-            onSlidingComplete={(v: number) => {
-              setBias(v);
-              setDragging(false);
-            }}
-            aria-label="Operating bias"
-          />
+          <BiasSlider testID="plan-bias-slider" label="Operating bias" min={lo} max={hi} step={step} value={inputs.bias} onChange={setBias} onDragging={setDragging} />
         </View>
         <Button small kind="secondary" label="›" accessibilityLabel="Raise bias" testID="plan-bias-up" onPress={() => setBias(inputs.bias + 5 * step)} />
       </View>
@@ -388,7 +400,7 @@ function Planner({ deviceId, deviceName, cal, fitVersion }: { deviceId: number; 
       onRetry={() => void ranking.refetch()}
       biasUnit={cal.bias_unit}
       currentBias={inputs.bias}
-      onPick={(b) => setBias(b)}
+      onPick={setBias}
     />
   );
 

@@ -13,6 +13,8 @@ const CSS = `
   [data-testid="nav-rail"], [data-testid="tab-bar"], [data-testid="top-bar"], [data-testid="plans-list-pane"],
   [role="button"], [data-print="hide"], [data-testid$="-noprint"] { display: none !important; }
   canvas { max-width: 100% !important; }
+  [data-testid="threshold-gauge"] > div:first-child { border: 1px solid #000 !important; }
+  [data-testid="threshold-gauge-fill"] { background-color: #555 !important; -webkit-print-color-adjust: exact; print-color-adjust: exact; }
 }`;
 
 /** Injects the print stylesheet while a plan sheet is open (web only). */

@@ -102,7 +102,7 @@ function PumpLineForm({ deviceId, current, onDone }: { deviceId: number; current
 }
 
 /** The device's pump line (generator → chip): what turns δΦ into a generator power. */
-export function PumpLineCard({ deviceId, startEditing, canEdit = true }: { deviceId: number; startEditing?: boolean; canEdit?: boolean }) {
+export const PumpLineCard = React.memo(function PumpLineCard({ deviceId, startEditing, canEdit = true }: { deviceId: number; startEditing?: boolean; canEdit?: boolean }) {
   const q = usePumpLine(deviceId);
   const [editing, setEditing] = useState(!!startEditing);
   React.useEffect(() => {
@@ -146,4 +146,4 @@ export function PumpLineCard({ deviceId, startEditing, canEdit = true }: { devic
       )}
     </Card>
   );
-}
+});

@@ -8,7 +8,7 @@ import { dbm, fixed, phi0, sci } from './format';
 import type { RankResult } from './types';
 
 /** Suggested operating points (server scan of the calibrated range); a tap moves the slider there. */
-export function RankedPoints({
+export const RankedPoints = React.memo(function RankedPoints({
   ranking,
   loading,
   error,
@@ -80,7 +80,7 @@ export function RankedPoints({
       )}
     </Card>
   );
-}
+});
 
 const styles = StyleSheet.create({
   row: {

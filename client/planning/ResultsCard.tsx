@@ -5,7 +5,7 @@ import { Card, Field, Rule } from '../ui/Card';
 import { Notice } from '../ui/States';
 import { Text } from '../ui/Text';
 import { RF_CAUTION } from './caution';
-import { dbm, fixed, hz, phi0, rate, ratio, sci, watts } from './format';
+import { bandDigits, bandText, dbm, fixed, hz, phi0, rate, ratio, sci, watts } from './format';
 import { ThresholdGauge } from './ThresholdGauge';
 import type { PlanResult } from './types';
 
@@ -99,13 +99,13 @@ export function ResultsCard({
         <Figure
           label="Predicted pair rate"
           value={result ? rate(result.predicted_pair_rate) : '—'}
-          sub={u ? `16–84 %: ${sci(u.pair_rate_p16)} – ${sci(u.pair_rate_p84)}` : result ? 'no uncertainty' : undefined}
+          sub={u ? `16–84 %: ${bandText(u.pair_rate_p16, u.pair_rate_p50, u.pair_rate_p84)}` : result ? 'no uncertainty' : undefined}
           testID="plan-pair-rate"
         />
       </View>
       {u ? (
         <Text variant="monoSmall" testID="plan-pair-band">
-          {`p16 ${sci(u.pair_rate_p16)} · p50 ${sci(u.pair_rate_p50)} · p84 ${sci(u.pair_rate_p84)} /s (${u.draws - u.rejected} of ${u.draws} draws)`}
+          {`p16 ${sci(u.pair_rate_p16, bandDigits(u.pair_rate_p16, u.pair_rate_p50, u.pair_rate_p84))} · p50 ${sci(u.pair_rate_p50, bandDigits(u.pair_rate_p16, u.pair_rate_p50, u.pair_rate_p84))} · p84 ${sci(u.pair_rate_p84, bandDigits(u.pair_rate_p16, u.pair_rate_p50, u.pair_rate_p84))} /s (${u.draws - u.rejected} of ${u.draws} draws)`}
         </Text>
       ) : null}
       <View style={{ gap: space.xs }}>

@@ -25,10 +25,24 @@ export const dbm = (x: number | null | undefined) => (x === null || x === undefi
 export const hz = (x: number | null | undefined, sig = 7) => siFormat(x, 'Hz', sig);
 export const watts = (x: number | null | undefined) => siFormat(x, 'W', 3);
 
-/** δΦ in Φ0 and mΦ0: "0.00412 Φ0 (4.12 mΦ0)". */
+/** δΦ in Φ0 and mΦ0: "4.12 × 10⁻³ Φ0 (4.12 mΦ0)". */
 export function phi0(x: number | null | undefined): string {
   if (x === null || x === undefined || !Number.isFinite(x)) return '—';
-  return `${Number(x.toPrecision(3))} Φ0 (${Number((x * 1e3).toPrecision(3))} mΦ0)`;
+  return `${sci(x)} Φ0 (${Number((x * 1e3).toPrecision(3))} mΦ0)`;
+}
+
+/** Significant digits that tell p16 and p84 apart (3 … 7). */
+export function bandDigits(p16: number, p50: number, p84: number): number {
+  const rel = (p84 - p16) / Math.abs(p50);
+  if (!(rel > 0) || !Number.isFinite(rel)) return 3;
+  return Math.min(7, Math.max(3, Math.ceil(-Math.log10(rel)) + 2));
+}
+
+/** The 16–84 % band of a rate: "9.9871 × 10⁴ – 1.0013 × 10⁵ (−0.13 % / +0.13 %)". */
+export function bandText(p16: number, p50: number, p84: number): string {
+  const d = bandDigits(p16, p50, p84);
+  const pct = (x: number) => `${x >= 0 ? '+' : '−'}${Number(Math.abs(x).toPrecision(2))} %`;
+  return `${sci(p16, d)} – ${sci(p84, d)} (${pct((p16 / p50 - 1) * 100)} / ${pct((p84 / p50 - 1) * 100)})`;
 }
 
 export function ratio(x: number | null | undefined, digits = 3): string {
