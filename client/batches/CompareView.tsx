@@ -154,8 +154,14 @@ function StatsCards({ batches, param, d }: { batches: CompareBatch[]; param: str
               <Text variant="mono" style={{ fontFamily: fonts.monoMedium }}>{b.code}</Text>
               <Text variant="monoSmall" testID={`compare-n-${param}-${b.code}`}>{`n = ${s?.count ?? 0}`}</Text>
             </View>
-            <Text variant="mono" testID={`compare-mean-${param}-${b.code}`}>{`${num(s?.mean, d)} ± ${num(s?.std, d, 3)}`}</Text>
-            <Text variant="monoSmall">{`median ${num(s?.median, d)} · ${num(s?.min, d)} … ${num(s?.max, d)}`}</Text>
+            {s && s.count > 0 ? (
+              <>
+                <Text variant="mono" testID={`compare-mean-${param}-${b.code}`}>{`${num(s.mean, d)}${s.std !== null ? ` ± ${num(s.std, d, 3)}` : ''}`}</Text>
+                <Text variant="monoSmall">{`median ${num(s.median, d)} · ${num(s.min, d)} … ${num(s.max, d)}`}</Text>
+              </>
+            ) : (
+              <Text variant="small">No calibrated device of this batch has this parameter.</Text>
+            )}
           </View>
         );
       })}
@@ -213,6 +219,9 @@ function ParamChart({ batches, param, d, spec, wide }: { batches: CompareBatch[]
       }
     });
     const span = [{ x: 0.5, y: 0 }, { x: n + 0.5, y: 0 }];
+    // Invisible anchor: every chosen batch keeps its slot on the x axis, data or not.
+    const anyValue = batches.flatMap((b) => b.stats[param]?.devices ?? [])[0]?.value;
+    if (anyValue !== undefined) out.push({ key: 'anchor', kind: 'line', color: 'rgba(0,0,0,0)', size: 0.1, points: span.map((p) => ({ x: p.x, y: anyValue * d.scale })) });
     if (spec?.min != null) out.push({ key: 'specMin', kind: 'line', color: colors.ok, size: 1.5, points: span.map((p) => ({ x: p.x, y: spec.min! * d.scale })) });
     if (spec?.max != null) out.push({ key: 'specMax', kind: 'line', color: colors.ok, size: 1.5, points: span.map((p) => ({ x: p.x, y: spec.max! * d.scale })) });
     return out;

@@ -46,8 +46,11 @@ function CooldownForm({ deviceId, onDone }: { deviceId: number; onDone: () => vo
   );
 }
 
-/** `calibration` is rendered between the design card and the cooldowns (the calibration section). */
-export function DeviceDetail({ id, showBack, calibration }: { id: number; showBack?: boolean; calibration?: React.ReactNode }) {
+/**
+ * `calibration` is rendered between the design card and the cooldowns (the calibration section);
+ * `actions` under the device's name (e.g. Plan a drive).
+ */
+export function DeviceDetail({ id, showBack, calibration, actions }: { id: number; showBack?: boolean; calibration?: React.ReactNode; actions?: React.ReactNode }) {
   const q = useDevice(id);
   const { user } = useSession();
   const [addingCooldown, setAddingCooldown] = useState(false);
@@ -82,6 +85,7 @@ export function DeviceDetail({ id, showBack, calibration }: { id: number; showBa
             {GEOMETRY_LABELS[device.geometry] ?? device.geometry} · batch {device.batchCode}
           </Text>
         </View>
+        {actions}
       </View>
       <Card title="Design">
         <Field label="Batch" value={device.batchCode} mono />

@@ -2,7 +2,7 @@ import React from 'react';
 import { useLocalSearchParams } from 'expo-router';
 import { DeviceCalibration } from '@/client/calibration/DeviceCalibration';
 import { DeviceDetail } from '@/client/devices/DeviceDetail';
-import { DevicePlanningCard } from '@/client/planning/DevicePlanningCard';
+import { DevicePlanningCard, PlanDriveButton } from '@/client/planning/DevicePlanningCard';
 import { Screen } from '@/client/ui/Screen';
 import { useIsWide } from '@/client/ui/useLayout';
 
@@ -15,6 +15,7 @@ export default function DeviceScreen() {
       <DeviceDetail
         id={deviceId}
         showBack={!wide}
+        actions={<PlanDriveButton deviceId={deviceId} />}
         calibration={
           <>
             <DeviceCalibration deviceId={deviceId} />
