@@ -62,14 +62,13 @@ function Readiness() {
 export function PlansHome({ wide }: { wide: boolean }) {
   return (
     <View style={{ gap: space.lg }} testID="plans-home">
-      <Readiness />
-      {wide ? (
-        <Text variant="small">Choose a plan on the left to open its sheet, or plan a new drive for a calibrated device.</Text>
-      ) : (
+      {wide ? <Text variant="small">Choose a plan on the left to open its sheet, or plan a new drive for a calibrated device.</Text> : null}
+      {wide ? null : (
         <Card title="Saved plans" testID="plans-saved-card">
           <PlansList />
         </Card>
       )}
+      <Readiness />
     </View>
   );
 }
