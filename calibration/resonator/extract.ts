@@ -725,3 +725,23 @@ export function extractSweep(traces: readonly SweepTrace[], opts: ExtractOptions
   summary.msPerTrace = traces.length ? (now() - t0) / traces.length : 0;
   return { traces: json, results, summary };
 }
+
+/** Joins the extractions of consecutive chunks of one sweep (worker pools split sweeps by trace). */
+export function mergeExtractions(parts: readonly SweepExtraction[]): SweepExtraction {
+  const summaries = parts.map((p) => p.summary);
+  const total = summaries.reduce((s, p) => s + p.total, 0);
+  const sum = (k: 'good' | 'noResonance' | 'lowSnr' | 'fitFailed') => summaries.reduce((s, p) => s + p[k], 0);
+  return {
+    traces: parts.flatMap((p) => p.traces),
+    results: parts.flatMap((p) => p.results),
+    summary: {
+      total,
+      good: sum('good'),
+      noResonance: sum('noResonance'),
+      lowSnr: sum('lowSnr'),
+      fitFailed: sum('fitFailed'),
+      msPerTrace: total ? summaries.reduce((s, p) => s + p.msPerTrace * p.total, 0) / total : 0,
+      flagged: summaries.flatMap((p) => p.flagged),
+    },
+  };
+}

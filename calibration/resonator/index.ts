@@ -2,5 +2,5 @@
 export * from './models';
 export { fitCirclePratt } from './circle';
 export type { Circle, CircleFit } from './circle';
-export { extractResonance, extractSweep, traceToJson } from './extract';
+export { extractResonance, extractSweep, traceToJson, mergeExtractions } from './extract';
 export type { ExtractOptions, TraceExtraction, TraceFlag, SweepTrace, SweepExtraction, SweepSummary } from './extract';

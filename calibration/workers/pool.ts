@@ -9,7 +9,7 @@ import { existsSync } from 'node:fs';
 import { join } from 'node:path';
 import Piscina from 'piscina';
 import type { CalibrationJson } from '../contract';
-import type { ExtractOptions, SweepExtraction, SweepSummary, SweepTrace } from '../resonator';
+import { mergeExtractions, type ExtractOptions, type SweepExtraction, type SweepTrace } from '../resonator';
 import { calibrateSweepData, extractionOptions, parseSweepFiles, type CalibrateOptions, type SweepFile } from '../pipeline';
 import type { ExtractTask } from './extractWorker';
 
@@ -17,19 +17,6 @@ export function createExtractionPool(threads = Math.max(1, availableParallelism(
   const ts = join(__dirname, 'extractWorker.ts');
   const filename = existsSync(ts) ? ts : join(__dirname, 'extractWorker.js');
   return new Piscina({ filename, minThreads: threads, maxThreads: threads, idleTimeout: 60_000 });
-}
-
-function mergeSummaries(parts: SweepSummary[]): SweepSummary {
-  const total = parts.reduce((s, p) => s + p.total, 0);
-  return {
-    total,
-    good: parts.reduce((s, p) => s + p.good, 0),
-    noResonance: parts.reduce((s, p) => s + p.noResonance, 0),
-    lowSnr: parts.reduce((s, p) => s + p.lowSnr, 0),
-    fitFailed: parts.reduce((s, p) => s + p.fitFailed, 0),
-    msPerTrace: total ? parts.reduce((s, p) => s + p.msPerTrace * p.total, 0) / total : 0,
-    flagged: parts.flatMap((p) => p.flagged),
-  };
 }
 
 /** Same result as `extractSweep(traces, opts)`, computed in chunks on the pool, order kept. */
@@ -42,12 +29,7 @@ export async function extractSweepParallel(pool: Piscina, traces: readonly Sweep
     const task: ExtractTask = { traces: traces.slice(i, i + size), opts };
     tasks.push(pool.run(task));
   }
-  const parts = await Promise.all(tasks);
-  return {
-    traces: parts.flatMap((p) => p.traces),
-    results: parts.flatMap((p) => p.results),
-    summary: mergeSummaries(parts.map((p) => p.summary)),
-  };
+  return mergeExtractions(await Promise.all(tasks));
 }
 
 /** Parse, extract on the pool, fit: the parallel counterpart of `calibrateFiles`. */

@@ -7,7 +7,7 @@
 import type { CalibrationJson } from '../../calibration/contract';
 import { CalibrationRequestError, calibrateSweepData, extractionOptions, parseSweepFiles, type CalibrateOptions, type SweepFile } from '../../calibration/pipeline';
 import { SweepParseError, type SweepData, type TuningPointsData } from '../../calibration/io';
-import { extractSweep, type ExtractOptions, type SweepExtraction, type SweepSummary, type SweepTrace } from '../../calibration/resonator';
+import { extractSweep, type ExtractOptions, type SweepExtraction, type SweepTrace } from '../../calibration/resonator';
 import type { ParseSummary, SweepIssue } from '../../shared/api/calibration';
 
 export interface WorkerFile {
@@ -164,23 +164,3 @@ export function fitData(task: FitTask): WorkerResult<CalibrationJson> {
   }
 }
 
-export function mergeExtractions(parts: SweepExtraction[]): SweepExtraction {
-  return {
-    traces: parts.flatMap((p) => p.traces),
-    results: parts.flatMap((p) => p.results),
-    summary: mergeSummaries(parts.map((p) => p.summary)),
-  };
-}
-
-function mergeSummaries(parts: SweepSummary[]): SweepSummary {
-  const total = parts.reduce((s, p) => s + p.total, 0);
-  return {
-    total,
-    good: parts.reduce((s, p) => s + p.good, 0),
-    noResonance: parts.reduce((s, p) => s + p.noResonance, 0),
-    lowSnr: parts.reduce((s, p) => s + p.lowSnr, 0),
-    fitFailed: parts.reduce((s, p) => s + p.fitFailed, 0),
-    msPerTrace: total ? parts.reduce((s, p) => s + p.msPerTrace * p.total, 0) / total : 0,
-    flagged: parts.flatMap((p) => p.flagged),
-  };
-}

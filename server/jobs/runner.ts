@@ -17,7 +17,7 @@ import type { DataSource } from 'typeorm';
 import type { CalibrationJson } from '@/calibration/contract';
 import type { SweepData } from '@/calibration/io';
 import { extractionOptions, type CalibrateOptions } from '@/calibration/pipeline';
-import type { SweepExtraction } from '@/calibration/resonator';
+import { mergeExtractions, type SweepExtraction } from '@/calibration/resonator';
 import type { FitOptions } from '@/shared/api/calibration';
 import type { Config } from '../config';
 import { JobEntity, type JobRow } from '../db/entities';
@@ -25,7 +25,7 @@ import type { Mailer } from '../mail/mailer';
 import { sweepContents } from '../features/calibration/repository';
 import { completeFitJob, failFitJob } from '../features/calibration/fitStore';
 import {
-  mergeExtractions, type ExtractChunkTask, type FitTask, type ParsedSweep, type ParseTask, type WorkerFile, type WorkerResult,
+  type ExtractChunkTask, type FitTask, type ParsedSweep, type ParseTask, type WorkerFile, type WorkerResult,
 } from './calibrationWorker';
 
 export const MAX_ATTEMPTS = 3;
