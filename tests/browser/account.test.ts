@@ -1,7 +1,7 @@
 // API tokens (create → shown once → works → revoke) and password reset, through the real UI.
 import type { Browser } from 'playwright-core';
-import { startTestServer, type TestServer } from '@/tests/support/testServer';
-import { DEMO, launchChromium, linkIn, openPage, PHONE, requireExport, signInThroughUi, WIDE } from './support';
+import type { TestServer } from '@/tests/support/testServer';
+import { DEMO, linkIn, openPage, PHONE, signInThroughUi, WIDE, demoSite } from './support';
 
 // The browser project's testTimeout in jest.config.js is not applied per project, so set it here.
 jest.setTimeout(240_000);
@@ -9,15 +9,9 @@ jest.setTimeout(240_000);
 let server: TestServer;
 let browser: Browser;
 
-beforeAll(async () => {
-  const staticDir = requireExport();
-  server = await startTestServer({ seedDemo: true, staticDir });
-  browser = await launchChromium();
-});
-
-afterAll(async () => {
-  await browser?.close();
-  await server?.close();
+demoSite((s, b) => {
+  server = s;
+  browser = b;
 });
 
 test('an API token is shown once, authenticates API calls, and stops working once revoked', async () => {

@@ -1,8 +1,8 @@
 // Phone-first layout: bottom tab bar under 768 px, left rail and two panes at and above it.
 // Screenshots of every main screen at 390×844 and 1440×900 go to test-artifacts/screenshots/.
 import type { Browser, Page } from 'playwright-core';
-import { startTestServer, type TestServer } from '@/tests/support/testServer';
-import { DEMO, horizontalOverflow, launchChromium, openPage, PHONE, requireExport, shot, signInThroughUi, WIDE } from './support';
+import type { TestServer } from '@/tests/support/testServer';
+import { DEMO, horizontalOverflow, openPage, PHONE, shot, signInThroughUi, WIDE, demoSite } from './support';
 
 // The browser project's testTimeout in jest.config.js is not applied per project, so set it here.
 jest.setTimeout(240_000);
@@ -10,15 +10,9 @@ jest.setTimeout(240_000);
 let server: TestServer;
 let browser: Browser;
 
-beforeAll(async () => {
-  const staticDir = requireExport();
-  server = await startTestServer({ seedDemo: true, staticDir });
-  browser = await launchChromium();
-});
-
-afterAll(async () => {
-  await browser?.close();
-  await server?.close();
+demoSite((s, b) => {
+  server = s;
+  browser = b;
 });
 
 async function expectShell(page: Page, wide: boolean, where: string): Promise<void> {

@@ -8,23 +8,17 @@ import { readFileSync } from 'node:fs';
 import Papa from 'papaparse';
 import type { Browser, Page } from 'playwright-core';
 import type { BatchCompareResponse } from '@/shared/api/planning';
-import { startTestServer, type TestServer } from '@/tests/support/testServer';
-import { DEMO, horizontalOverflow, launchChromium, openPage, PHONE, requireExport, sessionToken, shot, signInThroughUi, WIDE } from './support';
+import type { TestServer } from '@/tests/support/testServer';
+import { DEMO, horizontalOverflow, openPage, PHONE, sessionToken, shot, signInThroughUi, WIDE, demoSite } from './support';
 
 jest.setTimeout(300_000);
 
 let server: TestServer;
 let browser: Browser;
 
-beforeAll(async () => {
-  server = await startTestServer({ seedDemo: true, staticDir: requireExport() });
-  browser = await launchChromium();
-});
-
-afterAll(async () => {
-  await browser?.close();
-  await (server?.app.locals.jobs as { close?: () => Promise<void> } | undefined)?.close?.();
-  await server?.close();
+demoSite((s, b) => {
+  server = s;
+  browser = b;
 });
 
 async function api<T>(page: Page, p: string): Promise<T> {

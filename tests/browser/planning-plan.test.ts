@@ -15,23 +15,17 @@ import { bandDigits, hz, phi0, sci } from '@/client/planning/format';
 import type { Plan, PreviewResponse } from '@/shared/api/planning';
 import { signInAs } from '@/tests/support/api';
 import { files, uploadAndFit } from '@/tests/support/calibration';
-import { startTestServer, type TestServer } from '@/tests/support/testServer';
-import { DEMO, launchChromium, openPage, PHONE, requireExport, sessionToken, shot, signInThroughUi, WIDE, horizontalOverflow } from './support';
+import type { TestServer } from '@/tests/support/testServer';
+import { DEMO, openPage, PHONE, sessionToken, shot, signInThroughUi, WIDE, horizontalOverflow, demoSite } from './support';
 
 jest.setTimeout(300_000);
 
 let server: TestServer;
 let browser: Browser;
 
-beforeAll(async () => {
-  server = await startTestServer({ seedDemo: true, staticDir: requireExport() });
-  browser = await launchChromium();
-});
-
-afterAll(async () => {
-  await browser?.close();
-  await (server?.app.locals.jobs as { close?: () => Promise<void> } | undefined)?.close?.();
-  await server?.close();
+demoSite((s, b) => {
+  server = s;
+  browser = b;
 });
 
 const SUPER: Record<string, string> = { '⁻': '-', '⁰': '0', '¹': '1', '²': '2', '³': '3', '⁴': '4', '⁵': '5', '⁶': '6', '⁷': '7', '⁸': '8', '⁹': '9' };

@@ -1,7 +1,7 @@
 // Sign-in, role-aware shell, sign-out and the invitation round trip, through the real UI.
 import type { Browser } from 'playwright-core';
-import { startTestServer, type TestServer } from '@/tests/support/testServer';
-import { DEMO, type DemoRole, launchChromium, linkIn, openPage, PHONE, requireExport, SESSION_KEY, sessionToken, signInThroughUi, WIDE } from './support';
+import type { TestServer } from '@/tests/support/testServer';
+import { DEMO, type DemoRole, linkIn, openPage, PHONE, SESSION_KEY, sessionToken, signInThroughUi, WIDE, demoSite } from './support';
 
 // The browser project's testTimeout in jest.config.js is not applied per project, so set it here.
 jest.setTimeout(240_000);
@@ -9,15 +9,9 @@ jest.setTimeout(240_000);
 let server: TestServer;
 let browser: Browser;
 
-beforeAll(async () => {
-  const staticDir = requireExport();
-  server = await startTestServer({ seedDemo: true, staticDir });
-  browser = await launchChromium();
-});
-
-afterAll(async () => {
-  await browser?.close();
-  await server?.close();
+demoSite((s, b) => {
+  server = s;
+  browser = b;
 });
 
 test('a signed-out visit to /devices lands on sign-in, and after signing in returns to the page asked for', async () => {

@@ -3,6 +3,7 @@
 import { existsSync, mkdirSync } from 'node:fs';
 import path from 'node:path';
 import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core';
+import { startTestServer, type TestServer } from '../support/testServer';
 
 export const ROOT = path.resolve(__dirname, '..', '..');
 export const DIST = path.join(ROOT, 'dist');
@@ -105,4 +106,24 @@ export function linkIn(text: string, pathname: string): string {
   const hit = urls.find((u) => new URL(u).pathname === pathname);
   if (!hit) throw new Error(`no ${pathname} link in the e-mail; links found: ${JSON.stringify(urls)}`);
   return hit;
+}
+
+/**
+ * Registers the usual beforeAll/afterAll of a browser test file: a seeded test server over the web
+ * export and one headless Chromium, handed to `use` once started, both closed after the file.
+ */
+export function demoSite(use: (server: TestServer, browser: Browser) => void): void {
+  let server: TestServer | undefined;
+  let browser: Browser | undefined;
+  beforeAll(async () => {
+    server = await startTestServer({ seedDemo: true, staticDir: requireExport() });
+    browser = await launchChromium();
+    use(server, browser);
+  });
+  afterAll(async () => {
+    await browser?.close();
+    // Fit jobs run on a worker pool that outlives the HTTP server unless closed.
+    await (server?.app.locals.jobs as { close?: () => Promise<void> } | undefined)?.close?.();
+    await server?.close();
+  });
 }
