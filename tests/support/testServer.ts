@@ -38,17 +38,26 @@ export interface TestServerOptions {
   demoOutbox?: boolean;
   /** Overrides applied last (e.g. jwtExpiresInSeconds). */
   config?: Partial<Config>;
+  /** Start on this existing database (as after a restart) instead of a fresh one; migrations still run. */
+  database?: string;
+  /** Leave the database in place on close() (a later server reuses it; that one's close drops it). */
+  keepDatabase?: boolean;
+  /** JWT secret of the server (a restarted server keeps accepting the earlier server's tokens). */
+  jwtSecret?: string;
 }
 
 export async function startTestServer(opts: TestServerOptions = {}): Promise<TestServer> {
   await ensureTestDb();
-  const database = `fw_test_${process.pid}_${randomBytes(4).toString('hex')}`;
-  const admin = await createConnection(TEST_DB);
-  await admin.query(`CREATE DATABASE \`${database}\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci`);
-  await admin.end();
+  const database = opts.database ?? `fw_test_${process.pid}_${randomBytes(4).toString('hex')}`;
+  if (!opts.database) {
+    const admin = await createConnection(TEST_DB);
+    await admin.query(`CREATE DATABASE \`${database}\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci`);
+    await admin.end();
+  }
+  const dropOrKeep = (ds: DataSource) => (opts.keepDatabase ? (ds.isInitialized ? ds.destroy() : Promise.resolve()) : dropDatabase(ds, database));
 
   const base = loadConfig({
-    FW_JWT_SECRET: randomBytes(32).toString('hex'),
+    FW_JWT_SECRET: opts.jwtSecret ?? randomBytes(32).toString('hex'),
     FW_DB_PORT: String(TEST_DB.port),
     FW_DB_USER: TEST_DB.user,
     FW_DB_PASSWORD: TEST_DB.password,
@@ -114,12 +123,12 @@ export async function startTestServer(opts: TestServerOptions = {}): Promise<Tes
       database,
       async close() {
         for (const c of cleanups.reverse()) await c().catch(() => undefined);
-        await dropDatabase(dataSource, database);
+        await dropOrKeep(dataSource);
       },
     };
   } catch (e) {
     for (const c of cleanups.reverse()) await c().catch(() => undefined);
-    await dropDatabase(dataSource, database);
+    await dropOrKeep(dataSource);
     throw e;
   }
 }

@@ -28,11 +28,14 @@ export async function fitVersions(em: EntityManager, fitIds: number[]): Promise<
   return new Map(rows.map((f) => [f.id, f.version]));
 }
 
-// Fits never change after insert (the fit_immutable trigger), so a calibration read once can be kept.
+// Fits never change after insert (the fit_immutable trigger), so a calibration read once can be kept:
+// per data source (ids are per database), least recently used dropped first.
 const CAL_CACHE_SIZE = 64;
-const calCache = new Map<number, CalibrationJson>();
+const calCaches = new WeakMap<object, Map<number, CalibrationJson>>();
 
 export async function calibrationOfFit(em: EntityManager, fitId: number): Promise<CalibrationJson> {
+  let calCache = calCaches.get(em.connection);
+  if (!calCache) calCaches.set(em.connection, (calCache = new Map()));
   const hit = calCache.get(fitId);
   if (hit) {
     calCache.delete(fitId);
