@@ -85,18 +85,29 @@ describe('accepting a fit', () => {
     expect(bad.body.error.details[0].path).toBe('decision');
   });
 
-  it('e-mail: a new fit reaches the device engineers; an accepted calibration reaches the experimentalists', async () => {
-    const { deviceId, ids } = await deviceWithFits(1, 60);
+  it('e-mail: a new fit reaches the device engineers; an accepted calibration reaches the experimentalists with plans on the device', async () => {
+    const { deviceId, ids } = await deviceWithFits(2, 60);
     const dev = (await request(ts.app).get(`/api/devices/${deviceId}`).set(bearer(exp))).body.device;
     const proposed = await ts.mailbox.waitFor((m) => m.subject === `${dev.name}: fit v1 waits for review`);
     expect(proposed.to).toContain(demoUser('device_engineer').email);
     expect(proposed.text).toContain(`/devices/${deviceId}`);
     expect(proposed.text).toMatch(/f0 = 6\.2\d* ± [\d.]+ GHz/);
-    await review(lead, ids[0], 'accept', 'good fit');
-    const accepted = await ts.mailbox.waitFor((m) => m.subject === `${dev.name}: calibration v1 accepted`);
+    // v1 accepted while nobody has plans on the device: no one to tell.
+    await review(lead, ids[0], 'accept', 'first calibration');
+    // An experimentalist plans on v1; another active experimentalist (inserted directly) has no plans here.
+    await ts.dataSource.query(
+      "INSERT INTO `user` (labId, email, name, passwordHash, role, active) SELECT labId, 'exp-noplans@demo.fluxwright.test', 'No Plans', 'x', 'experimentalist', 1 FROM `user` WHERE email = ?",
+      [demoUser('experimentalist').email],
+    );
+    const plan = await request(ts.app).post('/api/plans').set(bearer(exp)).send({ deviceId, request: { mode: 'cavity', fluxPhi0: 0.3, targetPairRate: 1e5, uncertaintyDraws: 0 } });
+    expect(plan.status).toBe(201);
+    await review(lead, ids[1], 'accept', 'good fit');
+    const accepted = await ts.mailbox.waitFor((m) => m.subject === `${dev.name}: calibration v2 accepted`);
     expect(accepted.to).toContain(demoUser('experimentalist').email);
+    expect(accepted.to).not.toContain('exp-noplans@demo.fluxwright.test');
     expect(accepted.text).toContain('good fit');
     const all = await ts.mailbox.messages();
+    expect(all.filter((m) => m.subject === `${dev.name}: calibration v1 accepted`)).toEqual([]);
     // Lab leads are not on either list.
     expect(all.filter((m) => m.subject.startsWith(dev.name) && m.to.includes(demoUser('lab_lead').email))).toEqual([]);
   });
