@@ -107,7 +107,7 @@ describe('preview equals plan --json', () => {
     const pl = (await request(ts.app).get(`/api/devices/${deviceId}/pump-line`).set(bearer(exp))).body.pumpLine;
     const effective: PlanRequest = { ...req };
     const fromLine: Record<string, unknown> = { pumpPeriod: pl?.dcPeriod, coldStageLimitW: pl?.coldStageLimitW, pumpLineZ0Ohm: pl?.pumpLineZ0Ohm };
-    for (const k of filled) (effective as Record<string, unknown>)[k] = fromLine[k];
+    for (const k of filled) (effective as unknown as Record<string, unknown>)[k] = fromLine[k];
     const cli = runPlan(['--calibration', file, ...flagsFor(effective), '--json']);
     expect(cli.exitCode).toBe(0);
     expect(r.body.result).toEqual(JSON.parse(cli.stdout));
