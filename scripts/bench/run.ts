@@ -7,6 +7,7 @@ import { availableParallelism, loadavg } from 'node:os';
 import { rawComplexCsv, tuningPointsCsv } from '../../calibration/synth';
 import { BENCH_DEVICE as device, BENCH_RAW_SHAPE } from './device';
 import { benchUpload } from './upload';
+import { benchPreview } from './preview';
 import { calibrateFiles, parseSweepFiles } from '../../calibration/pipeline';
 import { fitTuningCurve } from '../../calibration/tuning/fitTuning';
 import { createExtractionPool, calibrateFilesParallel } from '../../calibration/workers/pool';
@@ -75,6 +76,9 @@ async function main(): Promise<void> {
   // 4. Through the product: upload of the raw sweep to a stored proposed fit (real MariaDB, worker pool).
   console.log('upload of the 201 × 2001 raw sweep through the API (target: stored proposed fit ≤ 5 s):');
   await benchUpload();
+
+  // 5. Plan preview round trip at 20 concurrent clients on loopback (target p95 ≤ 50 ms).
+  await benchPreview();
 }
 
 main().catch((e) => {

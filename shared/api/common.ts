@@ -19,6 +19,8 @@ export const ERROR_CODES = [
   'SWEEP_INVALID',
   'NO_ACTIVE_CALIBRATION',
   'NOT_COMPARABLE',
+  // Planning routes (shared/api/planning.ts): a target the planner core refuses (above threshold, …).
+  'PLAN_REFUSED',
 ] as const;
 export type ErrorCode = (typeof ERROR_CODES)[number];
 

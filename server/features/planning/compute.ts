@@ -4,7 +4,6 @@
 import type { CalibrationJson } from '@/calibration/contract';
 import { PlanError, planFromCalibration, rankOperatingPoints } from '@/calibration/planner';
 import type { PlanRequest, PlanResult, RankResult } from '@/calibration/planner/types';
-import type { ErrorCode } from '@/shared/api/common';
 import { PLAN_REFUSED, type PlanRefusedDetails, type PumpLine } from '@/shared/api/planning';
 import type { PumpLineRow } from '../../db/entities';
 import { AppError } from '../../http/errors';
@@ -24,8 +23,7 @@ export function pumpLineJson(p: PumpLineRow): PumpLine {
 
 export function refusal(e: PlanError): AppError {
   const details: PlanRefusedDetails = { code: e.code, option: e.option ?? null };
-  // PLAN_REFUSED is declared in shared/api/planning.ts (the common list predates it).
-  return new AppError(422, PLAN_REFUSED as ErrorCode, e.message, details);
+  return new AppError(422, PLAN_REFUSED, e.message, details);
 }
 
 /** Run a core call; PlanError → 422 PLAN_REFUSED with the core's message, code and option. */
