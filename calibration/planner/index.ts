@@ -7,6 +7,7 @@ export {
   SPEED_OF_LIGHT,
 } from './plan';
 export type { RankOptions } from './plan';
+export { completeFromPumpLine, type PumpLineSettings } from './pumpLine';
 export * as cavity from './cavity';
 export * as line from './line';
 export * as power from './power';

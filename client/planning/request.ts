@@ -1,6 +1,6 @@
 // Planner inputs as typed on the screen → the core's PlanRequest, plus the calibrated bias range.
 import type { CalibrationJson } from '@/shared/api/calibration';
-import { planFromCalibration, qualityFactorsAtBias } from '@/calibration/planner';
+import { completeFromPumpLine, qualityFactorsAtBias } from '@/calibration/planner';
 import { parseNumber } from './format';
 import type { PlanMode, PlanRequest, PumpLine } from './types';
 
@@ -70,65 +70,12 @@ export function calibrationQ(cal: CalibrationJson, bias: number): { ql: number; 
   return qualityFactorsAtBias(cal.traces, bias);
 }
 
-/** δΦ_th at an operating point under the request's own pump settings, from the core (no draws). */
-function thresholdAt(cal: CalibrationJson, req: PlanRequest, point: { fluxPhi0?: number; bias?: number }, resonantPump: boolean): number | null {
-  const probe: PlanRequest = {
-    ...req,
-    fluxPhi0: point.fluxPhi0,
-    bias: point.bias,
-    targetPairRate: 1e-6, // far below threshold: only threshold_amplitude_phi0 is read
-    targetGainDb: undefined,
-    pumpPeriod: undefined,
-    attenuationDb: undefined,
-    stageNames: undefined,
-    thresholdPowerDbm: undefined,
-    uncertaintyDraws: 0,
-  };
-  if (resonantPump) {
-    probe.pumpFrequencyHz = undefined;
-    probe.detuningHz = undefined;
-  }
-  try {
-    const t = planFromCalibration(cal, probe).threshold_amplitude_phi0;
-    return t !== null && Number.isFinite(t) && t > 0 ? t : null;
-  } catch {
-    return null;
-  }
-}
-
 /**
- * The request as the server completes it from the stored pump line (the rule of
- * server/features/planning/compute.ts fillFromPumpLine, mirrored so the live figures equal what a
- * save stores): a dc period is preferred to a measured threshold; a threshold measured at bias b_m
- * becomes P_th = P_th,meas·(δΦ_th(op)/δΦ_th(b_m))²; then the attenuators, limit and impedance.
+ * The request as the server completes it from the stored pump line: the planner core's own rule
+ * (calibration/planner/pumpLine.ts), so the live figures equal what a save stores.
  */
 export function fillFromPumpLine(cal: CalibrationJson, req: PlanRequest, pl: PumpLine | null | undefined): { request: PlanRequest; filled: string[] } {
-  if (!pl) return { request: req, filled: [] };
-  const out: PlanRequest = { ...req };
-  const filled: string[] = [];
-  const set = <K extends keyof PlanRequest>(k: K, v: PlanRequest[K]) => {
-    out[k] = v;
-    filled.push(k);
-  };
-  if (out.pumpPeriod === undefined && out.thresholdPowerDbm === undefined) {
-    if (pl.dcPeriod !== null) {
-      set('pumpPeriod', pl.dcPeriod);
-    } else if (pl.thresholdPowerDbm !== null && pl.thresholdBias !== null && out.mode === 'cavity') {
-      const op = out.fluxPhi0 !== undefined ? { fluxPhi0: out.fluxPhi0 } : { bias: out.bias };
-      const atOp = thresholdAt(cal, out, op, false);
-      const atMeas = thresholdAt(cal, out, { bias: pl.thresholdBias }, true);
-      if (atOp !== null && atMeas !== null) set('thresholdPowerDbm', pl.thresholdPowerDbm + 20 * Math.log10(atOp / atMeas));
-    }
-  }
-  if (out.pumpPeriod !== undefined || out.thresholdPowerDbm !== undefined) {
-    if (out.attenuationDb === undefined && pl.attenuationDb.length > 0) {
-      set('attenuationDb', [...pl.attenuationDb]);
-      if (out.stageNames === undefined && pl.stageNames.length === pl.attenuationDb.length) set('stageNames', [...pl.stageNames]);
-    }
-    if (out.coldStageLimitW === undefined) set('coldStageLimitW', pl.coldStageLimitW);
-    if (out.pumpPeriod !== undefined && out.pumpLineZ0Ohm === undefined) set('pumpLineZ0Ohm', pl.pumpLineZ0Ohm);
-  }
-  return { request: out, filled };
+  return completeFromPumpLine(cal, req, pl);
 }
 
 function positive(s: string, what: string, errors: InputErrors, key: keyof InputErrors, scale = 1): number | undefined {
