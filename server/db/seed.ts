@@ -1,4 +1,4 @@
-// Demo data: one invented lab with one user of each role, two fabrication batches, five devices
+// Demo data: one invented lab with one user of each role, two fabrication batches, seven devices
 // with design values and one cooldown each, and demo calibrations: synthetic sweeps of every input
 // kind (calibration/synth.ts, clearly marked invented) fitted through the pipeline, some accepted,
 // one rejected. Idempotent: the lab is made once; the calibrations are added when the demo lab has
@@ -51,6 +51,8 @@ const DEVICES: ReadonlyArray<{
   { name: 'Q4-R3', batch: 'NB-2611', chipPosition: 'B1', geometry: 'quarter_wave', designZ0Ohm: 48.5, designFrequencyHz: 5.87e9, loopInductanceH: 38e-12, fridge: 'Dilution fridge Birch', startedOn: '2026-04-20' },
   { name: 'Q7-L1', batch: 'NB-2614', chipPosition: 'C2', geometry: 'phase_only', designZ0Ohm: 50, designFrequencyHz: null, loopInductanceH: 55e-12, fridge: 'Dilution fridge Birch', startedOn: '2026-05-21' },
   { name: 'Q7-R5', batch: 'NB-2614', chipPosition: 'C5', geometry: 'quarter_wave', designZ0Ohm: 50, designFrequencyHz: 7.35e9, loopInductanceH: 60e-12, fridge: 'Dilution fridge Aster', startedOn: '2026-06-03' },
+  { name: 'Q8-R2', batch: 'NB-2614', chipPosition: 'D2', geometry: 'quarter_wave', designZ0Ohm: 50, designFrequencyHz: 6.1e9, loopInductanceH: 58e-12, fridge: 'Dilution fridge Birch', startedOn: '2026-06-10' },
+  { name: 'Q8-R4', batch: 'NB-2614', chipPosition: 'D4', geometry: 'quarter_wave', designZ0Ohm: 50, designFrequencyHz: 6.4e9, loopInductanceH: 58e-12, fridge: 'Dilution fridge Birch', startedOn: '2026-06-10' },
 ];
 
 export async function seedDemo(ds: DataSource, opts: { bcryptCost: number }): Promise<{ created: boolean }> {
@@ -129,6 +131,8 @@ const DEMO_TRUTH: Record<string, SyntheticDevice> = {
   'Q4-R2': { ...CHAIN, f0Hz: 6.25e9 * 1.034, gamma0: 0.034, asymmetry: 0.11, fluxPeriod: 1.09, fluxOffset: -0.04 },
   'Q4-R3': { ...CHAIN, f0Hz: 5.87e9 * 1.038, gamma0: 0.038, asymmetry: 0.06, fluxPeriod: 1.15, fluxOffset: 0.12 },
   'Q7-R5': { ...CHAIN, f0Hz: 7.35e9 * 1.055, gamma0: 0.055, asymmetry: 0.14, fluxPeriod: 0.98, fluxOffset: 0.09 },
+  'Q8-R2': { ...CHAIN, qi: 2.6e4, f0Hz: 6.1e9 * 1.058, gamma0: 0.058, asymmetry: 0.12, fluxPeriod: 1.02, fluxOffset: -0.07 },
+  'Q8-R4': { ...CHAIN, qi: 2.9e4, f0Hz: 6.4e9 * 1.061, gamma0: 0.061, asymmetry: 0.17, fluxPeriod: 1.0, fluxOffset: 0.03 },
   'Q7-L1': { ...CHAIN, geometry: 'reflection', f0Hz: 3.1e9, gamma0: 0.065, asymmetry: 0.18, fluxPeriod: 1.25, fluxOffset: 0.21 },
 };
 const BIAS = { biasMin: -1.2, biasMax: 1.2 };
@@ -171,6 +175,16 @@ const DEMO_SWEEPS: DemoSweep[] = [
     device: 'Q7-L1', note: 'Demo data (synthetic): reflected phase at 5.5 GHz versus coil current.',
     files: () => [{ name: 'Q7-L1_phase_demo.csv', text: phaseFluxCsv(DEMO_TRUTH['Q7-L1'], { biasMin: -1.5, biasMax: 1.5, points: 161, probeFrequencyHz: 5.5e9, noiseRad: 0.004, theta0Rad: 0.7, seed: 17 }) }],
     review: { by: 'lab_lead', decision: 'accept', comment: 'Phase swing as designed; L_eff modulation usable for the line experiments.' },
+  },
+  {
+    device: 'Q8-R2', note: 'Demo data (synthetic): full S21 traces, 41 bias × 401 frequency points.',
+    files: () => [{ name: 'Q8-R2_s21_demo.csv', text: rawComplexCsv(DEMO_TRUTH['Q8-R2'], { ...BIAS, points: 41, freqPoints: 401, noise: 0.003, seed: 18 }) }],
+    review: { by: 'device_engineer', decision: 'accept', comment: 'Larger participation than NB-2611, as the longer oxidation predicts; Q_i a little lower.' },
+  },
+  {
+    device: 'Q8-R4', note: 'Demo data (synthetic): resonance picked by the VNA marker, 120 bias points.',
+    files: () => [{ name: 'Q8-R4_tuning_demo.csv', text: tuningPointsCsv(DEMO_TRUTH['Q8-R4'], { ...BIAS, points: 120, noiseHz: 1.5e5, seed: 19 }) }],
+    review: { by: 'device_engineer', decision: 'accept', comment: 'Clean lobes; asymmetry at the top of the batch range.' },
   },
   {
     device: 'Q7-R5', note: 'Demo data (synthetic): resonance picked by the VNA marker, 120 bias points.',

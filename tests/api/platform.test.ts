@@ -56,11 +56,11 @@ describe('database', () => {
     expect(diff.upQueries.map((q) => q.query)).toEqual([]);
   });
 
-  test('seeding twice leaves the same counts; the demo lab has one user per role, 2 batches, 5 devices, 5 cooldowns', async () => {
+  test('seeding twice leaves the same counts; the demo lab has one user per role, 2 batches, 7 devices, 7 cooldowns', async () => {
     const first = await rowCounts(ts.dataSource);
     expect(await seedDemo(ts.dataSource, { bcryptCost: 4 })).toEqual({ created: false });
     expect(await rowCounts(ts.dataSource)).toEqual(first);
-    expect(first).toMatchObject({ lab: 1, user: DEMO_USERS.length, fab_batch: 2, device: 5, cooldown: 5 });
+    expect(first).toMatchObject({ lab: 1, user: DEMO_USERS.length, fab_batch: 2, device: 7, cooldown: 7 });
     const users = await ts.dataSource.query('SELECT role FROM `user` ORDER BY role');
     expect(users.map((u: { role: string }) => u.role)).toEqual(['device_engineer', 'experimentalist', 'lab_lead']);
   });
@@ -115,7 +115,7 @@ describe('batches and devices', () => {
     ['search by name part', '?search=q7', ['Q7-L1', 'Q7-R5']],
     ['search is case-insensitive and matches chip position', '?search=a3', ['Q4-R1']],
     ['LIKE wildcards are literal', '?search=%25', []],
-    ['batch by code', '?batch=NB-2614', ['Q7-L1', 'Q7-R5']],
+    ['batch by code', '?batch=NB-2614', ['Q7-L1', 'Q7-R5', 'Q8-R2', 'Q8-R4']],
     ['batch by id', '?batch=1', ['Q4-R1', 'Q4-R2', 'Q4-R3']],
     ['both', '?batch=NB-2611&search=R2', ['Q4-R2']],
   ])('device list: %s', async (_w, qs, names) => {
