@@ -82,20 +82,22 @@ export function participation(phi: number, p: SquidLineParams): number {
 export function solveExactRoot(g: number, c = 0): number {
   if (!(g > 0)) return 0; // γ = ∞ (or invalid): the SQUID shorts nothing, f → 0
   if (g === Infinity) return HALF_PI; // γ = 0: ideal short, f = f0
-  const G = (x: number) => x * Math.sin(x) - (g - c * x * x) * Math.cos(x);
-  const dG = (x: number) =>
-    Math.sin(x) + x * Math.cos(x) + 2 * c * x * Math.cos(x) + (g - c * x * x) * Math.sin(x);
+  // G and G′ are written out inline: this runs for every point of every fit evaluation, and a
+  // closure per call costs more than the arithmetic (notably under tsx, which names each closure).
   let lo = 0;
   let hi = HALF_PI;
   // Starting guesses: small γ → x ≈ (π/2)/(1 + γ); large γ → x·tan x ≈ x²(1 + c) = g.
   const gamma = 1 / g;
   let x = gamma < 1 ? HALF_PI / (1 + gamma) : Math.min(Math.sqrt(g / (1 + c)), 0.99 * HALF_PI);
   for (let it = 0; it < 100; it++) {
-    const gx = G(x);
+    const sx = Math.sin(x);
+    const cx = Math.cos(x);
+    const r = g - c * x * x;
+    const gx = x * sx - r * cx; // G(x)
     if (gx === 0) return x;
     if (gx < 0) lo = x;
     else hi = x;
-    const step = gx / dG(x);
+    const step = gx / (sx + x * cx + 2 * c * x * cx + r * sx); // G/G′
     const next = x - step;
     if (Number.isFinite(next) && next >= lo && next <= hi) {
       // Newton converges quadratically: a step below 1e-10·x leaves an error of order 1e-20·x.
