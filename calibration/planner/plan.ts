@@ -769,7 +769,11 @@ export const RANK_SCORING =
 
 const SERIOUS = new Set(['near_threshold', 'beyond_linear_response', 'near_lobe_edge', 'hysteretic_squid', 'cold_stage_power']);
 
-function biasRange(cal: CalibrationJson, dev: Device): [number, number] {
+/**
+ * The bias range a calibration covers (its points and traces), the span the ranking scans and the
+ * app's bias slider offers; without data, ±0.45 period around the offset.
+ */
+export function calibratedBiasRange(cal: CalibrationJson): [number, number] {
   const b: number[] = [];
   for (const p of cal.points ?? []) if (Number.isFinite(p.bias)) b.push(p.bias);
   for (const t of cal.traces ?? []) if (Number.isFinite(t.bias)) b.push(t.bias);
@@ -778,8 +782,10 @@ function biasRange(cal: CalibrationJson, dev: Device): [number, number] {
     const hi = Math.max(...b);
     if (hi > lo) return [lo, hi];
   }
-  const a = dev.offset - 0.45 * dev.period;
-  const c = dev.offset + 0.45 * dev.period;
+  const period = cal.params.flux_period?.value ?? 1;
+  const offset = cal.params.flux_offset?.value ?? 0;
+  const a = offset - 0.45 * period;
+  const c = offset + 0.45 * period;
   return [Math.min(a, c), Math.max(a, c)];
 }
 
@@ -793,7 +799,7 @@ export function rankOperatingPoints(calibration: CalibrationJson, request: PlanR
   const nPts = Math.max(200, Math.floor(options.points ?? 200));
   const top = Math.max(1, Math.floor(options.top ?? 5));
   const uTop = Math.max(0, Math.floor(options.uncertaintyTop ?? 3));
-  const [b0, b1] = biasRange(calibration, dev);
+  const [b0, b1] = calibratedBiasRange(calibration);
   const base: PlanRequest = { ...request, fluxPhi0: undefined, bias: b0, uncertaintyDraws: 0 };
   validateRequest(base); // bad options surface once, before the scan
   const plans: PlanResult[] = [];

@@ -1,6 +1,6 @@
 // Planner inputs as typed on the screen → the core's PlanRequest, plus the calibrated bias range.
 import type { CalibrationJson } from '@/shared/api/calibration';
-import { completeFromPumpLine, qualityFactorsAtBias } from '@/calibration/planner';
+import { calibratedBiasRange, completeFromPumpLine, qualityFactorsAtBias } from '@/calibration/planner';
 import { parseNumber } from './format';
 import type { PlanMode, PlanRequest, PumpLine } from './types';
 
@@ -20,22 +20,8 @@ export interface PlannerInputs {
 
 export type InputErrors = Partial<Record<'target' | 'ql' | 'qc' | 'temperatureMk' | 'bandMHz' | 'pumpGHz', string>>;
 
-/** The bias range the calibration covers (points and traces), the slider's span. */
-export function calibratedRange(cal: CalibrationJson): [number, number] {
-  const b: number[] = [];
-  for (const p of cal.points ?? []) if (Number.isFinite(p.bias)) b.push(p.bias);
-  for (const t of cal.traces ?? []) if (Number.isFinite(t.bias)) b.push(t.bias);
-  if (b.length >= 2) {
-    const lo = Math.min(...b);
-    const hi = Math.max(...b);
-    if (hi > lo) return [lo, hi];
-  }
-  const period = cal.params.flux_period?.value ?? 1;
-  const offset = cal.params.flux_offset?.value ?? 0;
-  const a = offset - 0.45 * period;
-  const c = offset + 0.45 * period;
-  return [Math.min(a, c), Math.max(a, c)];
-}
+/** The bias range the calibration covers (points and traces), the slider's span: the planner's own. */
+export const calibratedRange = calibratedBiasRange;
 
 /** A first operating point off the sweet spot: Φ = 0.25 Φ0 (slope large, far from the lobe edge), clamped to the range. */
 export function defaultBias(cal: CalibrationJson): number {
