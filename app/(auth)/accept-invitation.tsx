@@ -10,9 +10,10 @@ import { Button } from '@/client/ui/Button';
 import { Field } from '@/client/ui/Card';
 import { ErrorState, LoadingState, Notice } from '@/client/ui/States';
 import { Text } from '@/client/ui/Text';
+import { NewPasswordFields } from '@/client/ui/NewPasswordFields';
 import { TextField } from '@/client/ui/TextField';
 import { useHydrated } from '@/client/ui/useHydrated';
-import { checkNewPassword, MIN_PASSWORD_LENGTH } from '@/client/validation';
+import { checkNewPassword } from '@/client/validation';
 
 export default function AcceptInvitation() {
   const { token } = useLocalSearchParams<{ token?: string }>();
@@ -94,25 +95,15 @@ export default function AcceptInvitation() {
       <Field label="E-mail" value={inv.email} testID="invitation-email" />
       <Field label="Role" value={ROLE_LABELS[inv.role] ?? inv.role} testID="invitation-role" />
       <TextField label="Name" testID="accept-name" value={name} onChangeText={setName} error={errors.name} autoComplete="name" />
-      <TextField
+      <NewPasswordFields
         label="Password"
-        testID="accept-password"
-        value={password}
-        onChangeText={setPassword}
-        secureTextEntry
-        autoComplete="new-password"
-        hint={`At least ${MIN_PASSWORD_LENGTH} characters.`}
-        error={errors.password}
-      />
-      <TextField
-        label="Repeat password"
-        testID="accept-confirm"
-        value={confirm}
-        onChangeText={setConfirm}
-        secureTextEntry
-        autoComplete="new-password"
-        error={errors.confirm}
-        onSubmitEditing={submit}
+        testIDPrefix="accept"
+        password={password}
+        confirm={confirm}
+        onChangePassword={setPassword}
+        onChangeConfirm={setConfirm}
+        errors={errors}
+        onSubmit={submit}
       />
       {accept.isError ? <Notice tone="error">{errorMessage(accept.error)}</Notice> : null}
       <Button label="Create account and sign in" testID="accept-submit" onPress={submit} busy={accept.isPending} />

@@ -7,10 +7,11 @@ import { AuthFrame } from '@/client/ui/AuthFrame';
 import { Button } from '@/client/ui/Button';
 import { Notice } from '@/client/ui/States';
 import { Text } from '@/client/ui/Text';
+import { NewPasswordFields } from '@/client/ui/NewPasswordFields';
 import { TextField } from '@/client/ui/TextField';
 import { LoadingState } from '@/client/ui/States';
 import { useHydrated } from '@/client/ui/useHydrated';
-import { checkEmail, checkNewPassword, MIN_PASSWORD_LENGTH } from '@/client/validation';
+import { checkEmail, checkNewPassword } from '@/client/validation';
 
 function RequestForm() {
   const request = useRequestPasswordReset();
@@ -67,25 +68,15 @@ function ConfirmForm({ token }: { token: string }) {
   };
   return (
     <AuthFrame title="Choose a new password" testID="reset-confirm-screen">
-      <TextField
+      <NewPasswordFields
         label="New password"
-        testID="reset-password"
-        value={password}
-        onChangeText={setPassword}
-        secureTextEntry
-        autoComplete="new-password"
-        hint={`At least ${MIN_PASSWORD_LENGTH} characters.`}
-        error={errors.password}
-      />
-      <TextField
-        label="Repeat password"
-        testID="reset-confirm"
-        value={confirm}
-        onChangeText={setConfirm}
-        secureTextEntry
-        autoComplete="new-password"
-        error={errors.confirm}
-        onSubmitEditing={submit}
+        testIDPrefix="reset"
+        password={password}
+        confirm={confirm}
+        onChangePassword={setPassword}
+        onChangeConfirm={setConfirm}
+        errors={errors}
+        onSubmit={submit}
       />
       {confirmReset.isError ? <Notice tone="error">{errorMessage(confirmReset.error)}</Notice> : null}
       <Button label="Save new password" testID="reset-confirm-submit" onPress={submit} busy={confirmReset.isPending} />
