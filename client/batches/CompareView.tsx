@@ -7,7 +7,7 @@ import { ChartCard } from '../calibration/ChartCard';
 import { XYChartLazy } from '../charts/LazyChart';
 import type { Series } from '../charts/series';
 import { errorMessage } from '../api/http';
-import { downloadWithToken } from '../planning/download';
+import { downloadWithToken } from '../api/download';
 import { parseNumber } from '../planning/format';
 import type { BatchComparison, CompareBatch, CompareStats, SpecBounds } from '../planning/types';
 import { useBatches } from '../queries/batches';

@@ -1,6 +1,7 @@
 import React, { useState } from 'react';
 import { Platform, View } from 'react-native';
 import type { Fit } from '@/shared/api/calibration';
+import { downloadWithToken } from '../api/download';
 import { errorMessage } from '../api/http';
 import { formatDate } from '../format/units';
 import { exportUrl, useReviewFit } from '../queries/fits';
@@ -71,20 +72,9 @@ export function ReviewCard({ fit }: { fit: Fit }) {
   );
 }
 
-/** Downloads need the bearer token, so the file is fetched and handed to the browser as a blob. */
+/** The fit export, fetched with the session's token (see client/api/download). */
 async function download(fit: Fit, format: 'json' | 'csv', token: string | null): Promise<void> {
-  const res = await fetch(exportUrl(fit.id, format), { headers: token ? { Authorization: `Bearer ${token}` } : {} });
-  if (!res.ok) throw new Error(`The export failed (${res.status}).`);
-  const blob = await res.blob();
-  const name = /filename="?([^";]+)"?/.exec(res.headers.get('Content-Disposition') ?? '')?.[1] ?? `${fit.deviceName}-fit-v${fit.version}.${format}`;
-  const url = URL.createObjectURL(blob);
-  const a = document.createElement('a');
-  a.href = url;
-  a.download = name;
-  document.body.appendChild(a);
-  a.click();
-  a.remove();
-  setTimeout(() => URL.revokeObjectURL(url), 10_000);
+  await downloadWithToken(exportUrl(fit.id, format), token, `${fit.deviceName}-fit-v${fit.version}.${format}`);
 }
 
 export function ExportCard({ fit }: { fit: Fit }) {

@@ -14,7 +14,7 @@ import { EmptyState, ErrorState, LoadingState, Notice } from '../ui/States';
 import { Text } from '../ui/Text';
 import { TextField } from '../ui/TextField';
 import { useIsWide } from '../ui/useLayout';
-import { downloadWithToken } from './download';
+import { downloadWithToken } from '../api/download';
 import { dbm, fixed, hz, sci, watts } from './format';
 import { SpectrumChart } from './PlanCharts';
 import { canPlan } from './PlannerView';

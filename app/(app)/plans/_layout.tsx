@@ -1,9 +1,7 @@
 import React from 'react';
-import { ScrollView, View } from 'react-native';
 import { Slot, useGlobalSearchParams, usePathname } from 'expo-router';
 import { PlansList } from '@/client/planning/PlansList';
-import { colors, space } from '@/client/theme';
-import { Text } from '@/client/ui/Text';
+import { ListDetailPanes } from '@/client/ui/ListDetailPanes';
 import { useIsWide } from '@/client/ui/useLayout';
 
 /** Wide screens: the lab's plans on the left, the chosen plan on the right; the planner gets the full width. */
@@ -13,20 +11,8 @@ export default function PlansLayout() {
   const { id } = useGlobalSearchParams<{ id?: string }>();
   if (!wide || pathname === '/plans/new') return <Slot />;
   return (
-    <View style={{ flex: 1, flexDirection: 'row', minHeight: 0 }} testID="plans-two-pane">
-      <ScrollView
-        style={{ width: 380, flexGrow: 0, flexShrink: 0, borderRightWidth: 1, borderRightColor: colors.rule }}
-        contentContainerStyle={{ padding: space.xl, gap: space.lg }}
-        testID="plans-list-pane"
-      >
-        <Text variant="title" role="heading" aria-level={1}>
-          Plans
-        </Text>
-        <PlansList selectedId={id ? Number(id) : undefined} />
-      </ScrollView>
-      <View style={{ flex: 1, minWidth: 0 }}>
-        <Slot />
-      </View>
-    </View>
+    <ListDetailPanes title="Plans" testIDPrefix="plans" list={<PlansList selectedId={id ? Number(id) : undefined} />}>
+      <Slot />
+    </ListDetailPanes>
   );
 }
